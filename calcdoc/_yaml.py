@@ -1,0 +1,148 @@
+"""Safe YAML loading that keeps the line and column of every key and value.
+
+Only plain data is built (no object construction, PyYAML's safe resolver); the file size, the
+nesting depth and the number of nodes after alias expansion are bounded, so a crafted file (an
+"alias bomb" or a recursive anchor) is refused with a message instead of exhausting memory.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import Any
+
+from .errors import JobError, Problem
+
+MAX_BYTES = 1_000_000
+MAX_NODES = 100_000
+MAX_DEPTH = 40
+
+
+@dataclass
+class Node:
+    """A YAML value with where it stands in the file.
+
+    ``value`` is a dict of str → Node for a mapping, a list of Node for a sequence, or a plain
+    Python scalar (str, int, float, bool, None, date). ``key_line``/``key_col`` locate the key that
+    introduced this value (0 at the top), ``line``/``col`` the value itself (1-based).
+    """
+
+    value: Any
+    line: int
+    col: int
+    path: str
+    key_line: int = 0
+    key_col: int = 0
+    kind: str = "scalar"   # scalar, map or seq
+    tag: str = ""
+    extra: dict = field(default_factory=dict)
+
+    @property
+    def where(self) -> tuple[int, int]:
+        return (self.key_line, self.key_col) if self.key_line else (self.line, self.col)
+
+
+def decode(data: bytes, name: str) -> str:
+    """The job file's text; refuse files that are too big or not UTF-8."""
+    if len(data) > MAX_BYTES:
+        raise JobError([Problem(name, 0, 0, "", f"the file is {len(data):,} bytes",
+                                f"a job file is at most {MAX_BYTES:,} bytes; split the work into several jobs")])
+    try:
+        text = data.decode("utf-8")
+    except UnicodeDecodeError as exc:
+        line = data[: exc.start].count(b"\n") + 1
+        col = exc.start - (data.rfind(b"\n", 0, exc.start) + 1) + 1
+        raise JobError([Problem(name, line, col, "", f"byte 0x{data[exc.start]:02x} is not valid UTF-8",
+                                "save the job file as UTF-8 text")]) from None
+    if text.startswith("\ufeff"):
+        text = text[1:]
+    return text
+
+
+def load(text: str, name: str) -> Node:
+    """Parse YAML text into a :class:`Node` tree (top level must be a mapping)."""
+    import yaml
+
+    try:
+        root = yaml.compose(text, Loader=yaml.SafeLoader)
+    except yaml.MarkedYAMLError as exc:
+        mark = exc.problem_mark or exc.context_mark
+        line, col = (mark.line + 1, mark.column + 1) if mark else (0, 0)
+        what = exc.problem or "invalid YAML"
+        if exc.context:
+            what = f"{exc.context}, {what}"
+        raise JobError([Problem(name, line, col, "", f"YAML syntax error: {what}",
+                                "check indentation (spaces, not tabs), colons after keys and matching quotes")]) from None
+    except yaml.YAMLError as exc:
+        raise JobError([Problem(name, 0, 0, "", f"YAML error: {exc}", "write the job file as YAML")]) from None
+    if root is None:
+        raise JobError([Problem(name, 1, 1, "", "the file is empty",
+                                "start from one of the example jobs (calcdoc new writes a starter job)")])
+    builder = _Builder(name)
+    tree = builder.build(root, "", 0)
+    if tree.kind != "map":
+        raise JobError([Problem(name, tree.line, tree.col, "", f"the top level is a {_KIND_NAMES[tree.kind]}, not a mapping of keys",
+                                "a job file is a mapping of keys such as calcdoc:, calc:, gas:, start:, legs:")])
+    return tree
+
+
+_KIND_NAMES = {"scalar": "single value", "map": "mapping", "seq": "list"}
+
+
+class _Builder:
+    def __init__(self, name: str):
+        import yaml
+
+        self.name = name
+        self.count = 0
+        self.active: set[int] = set()
+        self.constructor = yaml.constructor.SafeConstructor()
+
+    def fail(self, node, path: str, found: str, valid: str):
+        raise JobError([Problem(self.name, node.start_mark.line + 1, node.start_mark.column + 1, path, found, valid)])
+
+    def build(self, node, path: str, depth: int) -> Node:
+        import yaml
+
+        self.count += 1
+        if self.count > MAX_NODES:
+            self.fail(node, path, f"the file expands to more than {MAX_NODES:,} values (anchors and aliases "
+                      "repeated many times)", "write the job out plainly; a job file needs a few hundred values at most")
+        if depth > MAX_DEPTH:
+            self.fail(node, path, f"values are nested more than {MAX_DEPTH} levels deep",
+                      "a job file is a few levels deep (legs → end → pressure)")
+        line, col = node.start_mark.line + 1, node.start_mark.column + 1
+        if id(node) in self.active:
+            self.fail(node, path, "an alias refers to the value that contains it (a recursive anchor)",
+                      "remove the recursive alias")
+        if isinstance(node, yaml.ScalarNode):
+            try:
+                value = self.constructor.construct_object(node, deep=True)
+            except yaml.constructor.ConstructorError as exc:
+                self.fail(node, path, f"cannot read the value: {exc.problem}", "write a plain number, text or date")
+            except ValueError:
+                self.fail(node, path, f"cannot read the value '{node.value}'", "write a plain number, text or date")
+            if isinstance(value, float) and value != value:
+                value = node.value  # '.nan' stays text so that validation names it
+            return Node(value, line, col, path, tag=node.tag)
+        self.active.add(id(node))
+        try:
+            if isinstance(node, yaml.SequenceNode):
+                items = [self.build(child, f"{path}[{i}]", depth + 1) for i, child in enumerate(node.value)]
+                return Node(items, line, col, path, kind="seq")
+            out: dict[str, Node] = {}
+            for key_node, value_node in node.value:
+                if not isinstance(key_node, yaml.ScalarNode):
+                    self.fail(key_node, path, "a key is itself a list or mapping", "keys are plain names")
+                if key_node.tag == "tag:yaml.org,2002:merge":
+                    self.fail(key_node, path, "merge keys ('<<') are not supported",
+                              "write the keys out in full")
+                key = str(key_node.value)
+                sub = f"{path}.{key}" if path else key
+                if key in out:
+                    self.fail(key_node, sub, f"the key '{key}' appears twice in the same mapping",
+                              "give each key once")
+                child = self.build(value_node, sub, depth + 1)
+                child.key_line, child.key_col = key_node.start_mark.line + 1, key_node.start_mark.column + 1
+                out[key] = child
+            return Node(out, line, col, path, kind="map")
+        finally:
+            self.active.discard(id(node))

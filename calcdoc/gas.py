@@ -1,0 +1,251 @@
+"""The gas interface: a state from two independent properties, with an ideal and a real implementation.
+
+Everything here is SI: P [Pa], T [K], v [m3/kg], u and h [J/kg], s [J/(kg K)].
+The real gas uses CoolProp's low-level ``AbstractState`` (one per gas, reused for every flash);
+the ideal gas has constant specific heats.
+"""
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+from .errors import PhysicsError
+
+__all__ = ["R_U", "State", "Gas", "IdealGas", "RealGas", "make_gas"]
+
+#: Molar gas constant [J/(mol K)], exact (CODATA 2018).
+R_U = 8.314462618
+
+#: Reference state of the ideal-gas model: h = 0 and s = 0 at 298.15 K and 101 325 Pa.
+T_REF = 298.15
+P_REF = 101325.0
+
+
+@dataclass(frozen=True)
+class State:
+    """A thermodynamic state of the gas (specific properties, SI)."""
+
+    P: float
+    T: float
+    v: float
+    u: float
+    h: float
+    s: float
+    Z: float
+    phase: str
+    quality: float | None = None   # vapour mass fraction in the two-phase region
+
+    @property
+    def rho(self) -> float:
+        return 1.0 / self.v
+
+
+class Gas:
+    """A gas model. Implementations give states from each pair of independent properties."""
+
+    model: str = ""
+    name: str = ""
+    M: float = 0.0           # molar mass [kg/mol]
+    eos_refs: tuple[str, ...] = ()
+    eos_method: str = ""
+
+    def state_PT(self, P: float, T: float) -> State: raise NotImplementedError
+    def state_Pv(self, P: float, v: float) -> State: raise NotImplementedError
+    def state_Tv(self, T: float, v: float) -> State: raise NotImplementedError
+    def state_Ps(self, P: float, s: float) -> State: raise NotImplementedError
+    def state_vs(self, v: float, s: float) -> State: raise NotImplementedError
+    def state_Ph(self, P: float, h: float) -> State: raise NotImplementedError
+
+    def describe(self) -> str:
+        return self.name
+
+    def saturation_curve(self, n: int = 60) -> list[tuple[float, float, float, float]] | None:
+        """Points (T, P, v, s) of the saturated liquid and vapour lines, or None if not applicable."""
+        return None
+
+    def dew_temperature(self, P: float) -> float | None:
+        """Dew (saturation) temperature at P, or None above the critical pressure or for an ideal gas."""
+        return None
+
+
+class IdealGas(Gas):
+    """Ideal gas with constant specific heats.
+
+    P·v = R·T;  h = cp·(T − T_ref);  u = h − R·T;  s = cp·ln(T/T_ref) − R·ln(P/P_ref), with
+    T_ref = 298.15 K and P_ref = 101 325 Pa. Only differences of u, h, s are meaningful.
+
+    References: Çengel & Boles (2019), ch. 4 and 7.
+    """
+
+    model = "ideal"
+    eos_method = "eos.ideal"
+
+    def __init__(self, name: str, k: float, M: float):
+        if not (1.0 < k <= 5.0 / 3.0 + 1e-9):
+            raise PhysicsError(f"heat capacity ratio k = {k} is outside (1, 5/3]")
+        self.name = name
+        self.k = k
+        self.M = M
+        self.R = R_U / M
+        self.cp = k * self.R / (k - 1.0)
+        self.cv = self.R / (k - 1.0)
+
+    def describe(self) -> str:
+        return f"{self.name} as an ideal gas, k = {self.k:.5g}, M = {self.M * 1e3:.5g} g/mol"
+
+    def _make(self, P: float, T: float) -> State:
+        if not (P > 0 and T > 0 and math.isfinite(P) and math.isfinite(T)):
+            raise PhysicsError(f"state with P = {P:.6g} Pa, T = {T:.6g} K is not physical")
+        h = self.cp * (T - T_REF)
+        v = self.R * T / P
+        return State(P, T, v, h - P * v, h, self.cp * math.log(T / T_REF) - self.R * math.log(P / P_REF), 1.0,
+                     "gas (ideal)")
+
+    def state_PT(self, P, T):
+        return self._make(P, T)
+
+    def state_Pv(self, P, v):
+        return self._make(P, P * v / self.R)
+
+    def state_Tv(self, T, v):
+        return self._make(self.R * T / v, T)
+
+    def state_Ps(self, P, s):
+        return self._make(P, T_REF * math.exp((s + self.R * math.log(P / P_REF)) / self.cp))
+
+    def state_vs(self, v, s):
+        # s = cv·ln(T/T_ref) − R·ln(R·T_ref/(v·P_ref))
+        T = T_REF * math.exp((s + self.R * math.log(self.R * T_REF / (v * P_REF))) / self.cv)
+        return self._make(self.R * T / v, T)
+
+    def state_Ph(self, P, h):
+        return self._make(P, T_REF + h / self.cp)
+
+
+_PHASES = {
+    "iphase_liquid": "liquid", "iphase_gas": "gas", "iphase_twophase": "two-phase",
+    "iphase_supercritical": "supercritical", "iphase_supercritical_gas": "supercritical gas",
+    "iphase_supercritical_liquid": "supercritical liquid", "iphase_critical_point": "critical point",
+}
+
+
+class RealGas(Gas):
+    """Real gas from the fluid's Helmholtz-energy equation of state through CoolProp.
+
+    One ``AbstractState`` is created per gas and reused for every flash (CoolProp's low-level
+    interface; Bell et al. 2014). Pure fluids by CoolProp name; mixtures by mole fraction.
+    """
+
+    model = "real"
+    eos_method = "eos.real"
+
+    def __init__(self, fluid: str | None = None, mixture: tuple[tuple[str, float], ...] = ()):
+        import CoolProp
+        import CoolProp.CoolProp as CP
+
+        self._CP = CP
+        comps = [fluid] if fluid else [c for c, _ in mixture]
+        try:
+            self.AS = CoolProp.AbstractState("HEOS", "&".join(comps))
+            if mixture:
+                self.AS.set_mole_fractions([x for _, x in mixture])
+        except ValueError as exc:
+            raise PhysicsError(f"CoolProp does not know the fluid {'&'.join(comps)!r} ({_short(exc)})") from None
+        self.mixture = tuple(mixture)
+        self.name = fluid if fluid else " + ".join(f"{x:.4g} {c}" for c, x in mixture)
+        self.M = self.AS.molar_mass()
+        self.eos_refs = tuple(dict.fromkeys(CP.get_BibTeXKey(c, "EOS") for c in comps))
+        self.Tmin = self.AS.Tmin()
+        self.Tmax = self.AS.Tmax()
+        self.pmax = self.AS.pmax()
+        self.pure = not mixture
+        self.Tc = self.AS.T_critical()
+        self.Pc = self.AS.p_critical()
+        self.flashes = 0
+
+    def describe(self) -> str:
+        return f"{self.name}, real gas (Helmholtz equation of state, CoolProp HEOS)"
+
+    def _update(self, pair, a: float, b: float, what: str) -> State:
+        AS = self.AS
+        self.flashes += 1
+        try:
+            AS.update(pair, a, b)
+        except ValueError as exc:
+            raise PhysicsError(f"the equation of state cannot give the state with {what} ({_short(exc)})") from None
+        P, T = AS.p(), AS.T()
+        if not (self.Tmin * 0.999 <= T <= self.Tmax) or P > self.pmax or P <= 0:
+            raise PhysicsError(f"the state with {what} (T = {T:.6g} K, P = {P:.6g} Pa) is outside the range of the "
+                               f"equation of state ({self.Tmin:.5g} K to {self.Tmax:.5g} K, up to {self.pmax:.4g} Pa)")
+        phase = _PHASES.get(getattr(AS.phase(), "name", str(AS.phase())).split(".")[-1], "unknown")
+        Q = AS.Q()
+        quality = Q if 0.0 <= Q <= 1.0 else None
+        if quality is not None:
+            phase = "two-phase"
+        return State(P, T, 1.0 / AS.rhomass(), AS.umass(), AS.hmass(), AS.smass(), AS.compressibility_factor(),
+                     phase, quality)
+
+    def state_PT(self, P, T):
+        return self._update(self._CP.PT_INPUTS, P, T, f"P = {P:.6g} Pa, T = {T:.6g} K")
+
+    def state_Pv(self, P, v):
+        return self._update(self._CP.DmassP_INPUTS, 1.0 / v, P, f"P = {P:.6g} Pa, v = {v:.6g} m3/kg")
+
+    def state_Tv(self, T, v):
+        return self._update(self._CP.DmassT_INPUTS, 1.0 / v, T, f"T = {T:.6g} K, v = {v:.6g} m3/kg")
+
+    def state_Ps(self, P, s):
+        return self._update(self._CP.PSmass_INPUTS, P, s, f"P = {P:.6g} Pa, s = {s:.6g} J/(kg K)")
+
+    def state_vs(self, v, s):
+        return self._update(self._CP.DmassSmass_INPUTS, 1.0 / v, s, f"v = {v:.6g} m3/kg, s = {s:.6g} J/(kg K)")
+
+    def state_Ph(self, P, h):
+        return self._update(self._CP.HmassP_INPUTS, h, P, f"P = {P:.6g} Pa, h = {h:.6g} J/kg")
+
+    def cp0_at(self, T: float) -> float:
+        """Ideal-gas isobaric heat capacity at T [J/(kg K)]."""
+        AS = self.AS
+        AS.update(self._CP.DmassT_INPUTS, 1e-6, T)
+        return AS.cp0mass()
+
+    def dew_temperature(self, P: float) -> float | None:
+        if not self.pure or P >= self.Pc:
+            return None
+        try:
+            self.AS.update(self._CP.PQ_INPUTS, P, 1.0)
+            return self.AS.T()
+        except ValueError:
+            return None
+
+    def saturation_curve(self, n: int = 60):
+        if not self.pure:
+            return None
+        CP = self._CP
+        AS = self.AS
+        Tt = max(AS.Ttriple(), self.Tmin)
+        pts_l, pts_v = [], []
+        for i in range(n):
+            # cluster points near the critical point, where the dome turns
+            x = i / (n - 1)
+            T = Tt + (self.Tc - Tt) * (1 - (1 - x) ** 2) * 0.9999
+            try:
+                AS.update(CP.QT_INPUTS, 0.0, T)
+                pts_l.append((T, AS.p(), 1.0 / AS.rhomass(), AS.smass()))
+                AS.update(CP.QT_INPUTS, 1.0, T)
+                pts_v.append((T, AS.p(), 1.0 / AS.rhomass(), AS.smass()))
+            except ValueError:
+                continue
+        return pts_l + pts_v[::-1]
+
+
+def _short(exc: Exception) -> str:
+    text = str(exc).strip().splitlines()[0] if str(exc).strip() else type(exc).__name__
+    return text[:200]
+
+
+def make_gas(spec) -> Gas:
+    """The gas model a job asks for (``spec`` is a :class:`calcdoc.jobfile.GasSpec`)."""
+    if spec.model == "real":
+        return RealGas(spec.fluid, spec.mixture)
+    raise ValueError("ideal gases are made by the engine, which knows the start state")

@@ -1,0 +1,63 @@
+"""Writing results and reports: atomically, inside the chosen folder only."""
+from __future__ import annotations
+
+import os
+import tempfile
+from pathlib import Path
+
+from .errors import CalcdocError
+
+
+def write_atomic(target: Path, data: bytes) -> None:
+    """Write to a temporary file beside the target, then rename over it (never a partial file)."""
+    fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".part", dir=str(target.parent))
+    try:
+        with os.fdopen(fd, "wb") as fh:
+            fh.write(data)
+            fh.flush()
+            os.fsync(fh.fileno())
+        os.chmod(tmp, 0o644)
+        os.replace(tmp, target)
+    except BaseException:
+        try:
+            os.unlink(tmp)
+        except OSError:
+            pass
+        raise
+
+
+def output_paths(results, out_dir: str | os.PathLike) -> tuple[Path, Path]:
+    from .report.render import safe_stem
+
+    out = Path(out_dir)
+    stem = safe_stem(results.job.calc.number, results.job.calc.revision)
+    return out / f"{stem}.json", out / f"{stem}.pdf"
+
+
+def write(results, out_dir: str | os.PathLike, pdf: bool = True) -> list[Path]:
+    """Write ``<stem>.json`` and ``<stem>.pdf`` into out_dir. Both are rendered in memory first, so
+    a failure leaves any earlier report of the same job untouched."""
+    from .results import dumps
+
+    out = Path(out_dir)
+    try:
+        out.mkdir(parents=True, exist_ok=True)
+    except OSError as exc:
+        raise CalcdocError(f"cannot create the output folder {out}: {exc.strerror}") from None
+    json_path, pdf_path = output_paths(results, out)
+    job_path = Path(results.job.name).resolve()
+    for p in (json_path, pdf_path):
+        if p.resolve() == job_path:
+            raise CalcdocError(f"refusing to overwrite the job file {results.job.name}")
+    text = dumps(results)
+    pdf_bytes = None
+    if pdf:
+        from .report import render_pdf
+
+        pdf_bytes = render_pdf(results, text)
+    write_atomic(json_path, text.encode("utf-8"))
+    written = [json_path]
+    if pdf_bytes is not None:
+        write_atomic(pdf_path, pdf_bytes)
+        written.append(pdf_path)
+    return written

@@ -1,0 +1,128 @@
+"""Charts of the report: P–v and T–s diagrams as deterministic SVG (matplotlib, imported lazily).
+
+Every leg is drawn along the states the engine computed on its path, not as a straight line
+between its end points. Values are converted for display through :mod:`calcdoc.units`.
+"""
+from __future__ import annotations
+
+import base64
+import io
+
+from .. import units
+
+# Our own sober palette: ink blue, rust, moss, plum, ochre, slate, teal, brick.
+PALETTE = ["#1f3b5a", "#b4532a", "#5b7b3a", "#7a3b6e", "#c08a1e", "#56606b", "#2f7f7a", "#8c2f2f"]
+
+
+def _pyplot():
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+
+    matplotlib.rcParams.update({
+        "svg.hashsalt": "calcdoc",
+        "svg.fonttype": "path",
+        "font.family": "DejaVu Sans",
+        "font.size": 8.5,
+        "axes.edgecolor": "#333333",
+        "axes.linewidth": 0.7,
+        "axes.grid": True,
+        "grid.color": "#d8d8d8",
+        "grid.linewidth": 0.5,
+        "axes.spines.top": False,
+        "axes.spines.right": False,
+        "legend.frameon": False,
+        "lines.linewidth": 1.6,
+        "path.simplify": False,
+    })
+    return plt
+
+
+def _svg(fig) -> str:
+    buf = io.BytesIO()
+    fig.savefig(buf, format="svg", metadata={"Date": None}, bbox_inches="tight")
+    return "data:image/svg+xml;base64," + base64.b64encode(buf.getvalue()).decode("ascii")
+
+
+def _conv(values, si_unit, system, difference=False):
+    return [units.display(x, si_unit, system, difference=difference)[0] for x in values]
+
+
+def _label(name, si_unit, system):
+    return f"{name} [{units.pretty_unit(units.display_unit(si_unit, system))}]"
+
+
+def diagrams(results, system: str) -> dict[str, str]:
+    """P–v and T–s diagrams of a job, as SVG data URIs, keyed 'pv' and 'ts'."""
+    plt = _pyplot()
+    out = {}
+    legs = results.legs
+    sat = results.saturation
+    # --- P–v
+    fig, ax = plt.subplots(figsize=(6.3, 3.6))
+    allv, allP = [], []
+    for k, leg in enumerate(legs):
+        v = _conv([s.v for s in leg.path], "m**3/kg", system)
+        P = _conv([s.P for s in leg.path], "Pa", system)
+        allv += v
+        allP += P
+        ax.plot(v, P, color=PALETTE[k % len(PALETTE)], label=f"{leg.i}→{leg.i + 1}  {leg.name}")
+    _mark_states(ax, results, system, "v", "P")
+    if sat:
+        vs = _conv([p[2] for p in sat], "m**3/kg", system)
+        Ps = _conv([p[1] for p in sat], "Pa", system)
+        ax.plot(vs, Ps, color="#888888", lw=0.9, ls="--", label="saturation")
+    if allv and max(allv) / max(min(allv), 1e-300) > 6:
+        ax.set_xscale("log")
+    if allP and max(allP) / max(min(allP), 1e-300) > 6:
+        ax.set_yscale("log")
+    if allv:
+        _limits(ax, allv, allP)
+    ax.set_xlabel(_label("specific volume v", "m**3/kg", system))
+    ax.set_ylabel(_label("pressure P (absolute)", "Pa", system))
+    ax.legend(fontsize=7.5, loc="best")
+    out["pv"] = _svg(fig)
+    plt.close(fig)
+    # --- T–s
+    fig, ax = plt.subplots(figsize=(6.3, 3.6))
+    alls, allT = [], []
+    for k, leg in enumerate(legs):
+        s = _conv([st.s for st in leg.path], "J/(kg*K)", system)
+        T = _conv([st.T for st in leg.path], "K", system)
+        alls += s
+        allT += T
+        ax.plot(s, T, color=PALETTE[k % len(PALETTE)], label=f"{leg.i}→{leg.i + 1}  {leg.name}")
+    _mark_states(ax, results, system, "s", "T")
+    if sat:
+        ss = _conv([p[3] for p in sat], "J/(kg*K)", system)
+        Ts = _conv([p[0] for p in sat], "K", system)
+        ax.plot(ss, Ts, color="#888888", lw=0.9, ls="--", label="saturation")
+    if alls:
+        _limits(ax, alls, allT)
+    ax.set_xlabel(_label("specific entropy s", "J/(kg*K)", system) + "  (differences only)")
+    ax.set_ylabel(_label("temperature T", "K", system))
+    ax.legend(fontsize=7.5, loc="best")
+    out["ts"] = _svg(fig)
+    plt.close(fig)
+    return out
+
+
+def _limits(ax, xs, ys):
+    """Frame the process, not the whole saturation dome."""
+    def pad(lo, hi, log):
+        if log:
+            return lo / 1.25, hi * 1.25
+        span = (hi - lo) or abs(hi) * 0.1 or 1.0
+        return lo - 0.08 * span, hi + 0.08 * span
+    ax.set_xlim(*pad(min(xs), max(xs), ax.get_xscale() == "log"))
+    ax.set_ylim(*pad(min(ys), max(ys), ax.get_yscale() == "log"))
+
+
+def _mark_states(ax, results, system, x, y):
+    unit = {"v": "m**3/kg", "P": "Pa", "s": "J/(kg*K)", "T": "K"}
+    for rec in results.states:
+        xv = units.display(getattr(rec.state, x), unit[x], system)[0]
+        yv = units.display(getattr(rec.state, y), unit[y], system)[0]
+        ax.plot([xv], [yv], "o", ms=3.5, color="#111111", zorder=5)
+        ax.annotate(rec.label, (xv, yv), textcoords="offset points", xytext=(4, 4), fontsize=7.5)

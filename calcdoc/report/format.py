@@ -1,0 +1,161 @@
+"""Formatting for the report: numbers with sensible significant figures, units, typeset equations.
+
+Presentation only: values are converted for display through :mod:`calcdoc.units` (the one place
+for unit conversion) and never recomputed.
+"""
+from __future__ import annotations
+
+import math
+import re
+
+from markupsafe import Markup, escape
+
+from .. import units
+from ..calc import Calc, Term
+
+# Units in which substituted equations are shown: coherent with kPa and kJ so that a checker can
+# redo the arithmetic (kPa·m³ = kJ); temperatures in equations are always absolute (K).
+_SUBST_UNITS = {"Pa": "kPa", "J": "kJ", "J/kg": "kJ/kg", "J/(kg*K)": "kJ/(kg*K)", "J/K": "kJ/K", "W": "kW"}
+
+
+def num(x: float | None, sig: int = 5, strip: bool = False) -> Markup:
+    return Markup(_num(x, sig, strip))
+
+
+def css_string(text: str) -> Markup:
+    """Job text made safe inside a double-quoted CSS string (page headers)."""
+    out = []
+    for ch in str(text):
+        if ch in '"\\' or ord(ch) < 0x20 or ch in "<>&":
+            out.append(f"\\{ord(ch):x} ")
+        else:
+            out.append(ch)
+    return Markup("".join(out))
+
+
+def _num(x: float | None, sig: int = 5, strip: bool = False) -> str:
+    """A number to ``sig`` significant figures: plain from 1e-3 to 1e7 (thin-space thousands), else ×10ⁿ."""
+    if x is None or (isinstance(x, float) and math.isnan(x)):
+        return "—"
+    if isinstance(x, float) and math.isinf(x):
+        return "∞" if x > 0 else "−∞"
+    if x == 0:
+        return "0"
+    ax = abs(x)
+    if 1e-3 <= ax < 1e7:
+        digits = max(0, sig - 1 - int(math.floor(math.log10(ax))))
+        text = f"{x:,.{digits}f}"
+        if strip and "." in text:
+            text = text.rstrip("0").rstrip(".")
+        return text.replace(",", "\u2009").replace("-", "−")
+    mant, exp = f"{x:.{sig - 1}e}".split("e")
+    return f"{mant.replace('-', '−')}×10<sup>{int(exp)}</sup>"
+
+
+def qty(value: float | None, si_unit: str, system: str, sig: int = 5, difference: bool = False) -> Markup:
+    """A value with its unit in the report's unit system."""
+    if value is None:
+        return Markup("—")
+    v, u = units.display(value, si_unit, system, difference=difference)
+    return Markup(num(v, sig) + ("\u202f" + u if u else ""))
+
+
+def unit_of(si_unit: str, system: str, difference: bool = False) -> str:
+    if difference and si_unit == "K":
+        return "K" if system == "SI" else "°R"
+    return units.pretty_unit(units.display_unit(si_unit, system))
+
+
+def value_in(value: float, si_unit: str, system: str, sig: int = 5, difference: bool = False) -> Markup:
+    """Only the number of a value in the report's unit system (for table cells under a unit header)."""
+    v, _ = units.display(value, si_unit, system, difference=difference)
+    return Markup(num(v, sig))
+
+
+def subst_value(t: Term) -> str:
+    """An input of a substituted equation: coherent kPa/kJ units, absolute temperatures in K."""
+    if t.unit in _SUBST_UNITS:
+        u = _SUBST_UNITS[t.unit]
+        v = units.convert(t.value, t.unit, u)
+        return f"{num(v, 6, strip=True)}\u202f{units.pretty_unit(u)}"
+    if t.unit == "":
+        return num(t.value, 6, strip=True)
+    return f"{num(t.value, 6, strip=True)}\u202f{units.pretty_unit(t.unit)}"
+
+
+def result_si(c: Calc) -> str:
+    return subst_value(Term(c.symbol, c.value, c.unit))
+
+
+_SYM = re.compile(r"([A-Za-zΔηρ]+)_(\{[^}]*\}|[A-Za-z0-9]+)")
+
+
+def symbol(text: str) -> Markup:
+    """A symbol in the trade's notation: P_1 → P₁ (as HTML), Greek letters upright."""
+    out = []
+    pos = 0
+    for m in _SYM.finditer(text):
+        out.append(str(escape(text[pos:m.start()])))
+        base, sub = m.group(1), m.group(2).strip("{}")
+        out.append(f"<i>{escape(base)}</i><sub>{escape(sub)}</sub>" if base not in ("Δ",) else
+                   f"{escape(base)}<sub>{escape(sub)}</sub>")
+        pos = m.end()
+    rest = text[pos:]
+    if rest and not out and re.fullmatch(r"[A-Za-z]", rest):
+        return Markup(f"<i>{escape(rest)}</i>")
+    if rest and re.fullmatch(r"Δ[A-Z]", rest):
+        return Markup(f"Δ<i>{escape(rest[1])}</i>")
+    out.append(str(escape(rest)))
+    return Markup("".join(out))
+
+
+def equation(c: Calc, numbers: bool) -> Markup:
+    """The right-hand side of a calc, typeset: with symbols, or with the numbers put in."""
+    if not c.equation:
+        return Markup("")
+
+    def field(key: str) -> str:
+        t = c.inputs.get(key)
+        if t is None:
+            return str(escape(key))
+        if not numbers:
+            return str(symbol(t.symbol))
+        text = subst_value(t)
+        return f"({text})" if t.value < 0 else text
+
+    return Markup(_typeset(c.equation, field))
+
+
+def _typeset(src: str, field) -> str:
+    out: list[str] = []
+    i = 0
+    while i < len(src):
+        ch = src[i]
+        if ch == "{":
+            j = src.index("}", i)
+            out.append(field(src[i + 1:j]))
+            i = j + 1
+        elif ch == "^":
+            i += 1
+            if i < len(src) and src[i] == "(":
+                depth, j = 1, i + 1
+                while j < len(src) and depth:
+                    depth += {"(": 1, ")": -1}.get(src[j], 0)
+                    j += 1
+                out.append(f"<sup>{_typeset(src[i + 1:j - 1], field)}</sup>")
+                i = j
+            elif i < len(src) and src[i] == "{":
+                j = src.index("}", i)
+                out.append(f"<sup>{field(src[i + 1:j])}</sup>")
+                i = j + 1
+            else:
+                m = re.match(r"[A-Za-z0-9.]+", src[i:])
+                tok = m.group(0) if m else ""
+                out.append(f"<sup>{escape(tok)}</sup>")
+                i += len(tok)
+        else:
+            m = re.match(r"[^{^]+", src[i:])
+            chunk = m.group(0)
+            out.append(str(symbol(chunk)))
+            i += len(chunk)
+    return "".join(out)

@@ -1,0 +1,189 @@
+"""Render results into the calc package: HTML from our templates, then a PDF with attachments.
+
+WeasyPrint fetches only our own templates folder, the fonts that ship with matplotlib and data:
+URLs (see :class:`RestrictedFetcher`); job text is autoescaped everywhere.
+"""
+from __future__ import annotations
+
+import datetime as _dt
+import mimetypes
+import os
+from importlib import resources
+from pathlib import Path
+
+from .. import methods, units
+from . import format as fmt
+
+CAUTIONS = (
+    "Compressed gas stores energy. A vessel, cylinder or pipe that fails at pressure can release it "
+    "violently; the energy stored rises with pressure and volume. Depressurise and isolate before work.",
+    "Compression heats gas and expansion cools it. Discharge lines, coolers and machine casings can be hot "
+    "enough to burn, to degrade lubricants and seals, or (with oil vapour in air) to ignite; expanded gas can "
+    "be cold enough to embrittle materials or freeze moisture.",
+    "This calculation does not replace the pressure-equipment, piping and machinery codes that apply to the "
+    "equipment (for example the applicable pressure vessel code, piping code and compressor standard, in the "
+    "edition in force). Design limits and allowable pressures must be taken from those codes and from the "
+    "equipment datasheets.",
+    "The results must be reviewed by a qualified engineer, and checked and approved by a licensed professional "
+    "engineer where local rules require it, before they are used for design, purchase, operation or safety "
+    "decisions.",
+)
+
+ENGINE_ASSUMPTIONS = {
+    "closed": (
+        "The gas is a fixed mass (no leakage past seals or valves).",
+        "Each leg follows a quasi-equilibrium (internally reversible) path of the stated kind.",
+        "Kinetic and potential energy of the gas are neglected.",
+        "The gas is uniform in pressure and temperature at every instant.",
+    ),
+}
+
+
+def templates_dir() -> Path:
+    return Path(str(resources.files("calcdoc.templates")))
+
+
+def fonts_dir() -> Path:
+    import matplotlib
+
+    return Path(matplotlib.get_data_path()) / "fonts" / "ttf"
+
+
+def _env():
+    import jinja2
+
+    env = jinja2.Environment(loader=jinja2.FileSystemLoader(str(templates_dir())),
+                             autoescape=True, undefined=jinja2.StrictUndefined,
+                             trim_blocks=True, lstrip_blocks=True)
+    env.filters.update(num=fmt.num, qty=fmt.qty, unit_of=fmt.unit_of, value_in=fmt.value_in,
+                       symbol=fmt.symbol, eq=fmt.equation, result_si=fmt.result_si,
+                       css_string=fmt.css_string)
+    return env
+
+
+def context(results) -> dict:
+    """Everything the templates show, prepared for display (numbering, references, labels)."""
+    job = results.job
+    system = job.units
+    used = results.methods_used()
+    ref_keys: list[str] = []
+    for mid in used:
+        for key in methods.method(mid).refs:
+            if key not in ref_keys:
+                ref_keys.append(key)
+    for key in getattr(results.gas, "eos_refs", ()):
+        if key not in ref_keys:
+            ref_keys.append(key)
+    ref_no = {k: i + 1 for i, k in enumerate(ref_keys)}
+    cite = {mid: [ref_no[k] for k in methods.method(mid).refs] for mid in used}
+    if results.gas.model == "real" or results.gas.eos_refs:
+        eos_nums = [ref_no[k] for k in results.gas.eos_refs if k in ref_no]
+        cite["eos.real"] = sorted(set(cite.get("eos.real", []) + eos_nums))
+    lines = job.text.splitlines()
+    from ..engine import software_versions  # versions only; no computation
+
+    charts = {}
+    if results.legs:
+        from .charts import diagrams
+
+        charts = diagrams(results, system)
+    return {
+        "r": results,
+        "job": job,
+        "t": job.calc,
+        "system": system,
+        "methods": methods,
+        "cite": cite,
+        "references": [(ref_no[k], methods.reference(k)) for k in ref_keys],
+        "job_lines": lines,
+        "cautions": CAUTIONS,
+        "engine_assumptions": ENGINE_ASSUMPTIONS.get(results.system, ()),
+        "inputs": sorted(job.inputs, key=lambda i: (i.line, i.col)),
+        "charts": charts,
+        "units": units,
+        "software": results.software or software_versions(),
+        "fonts_url": fonts_dir().as_uri(),
+        "title_text": f"{job.calc.number} rev. {job.calc.revision} — {job.calc.title}",
+    }
+
+
+def render_html(results) -> str:
+    return _env().get_template("report.html").render(**context(results))
+
+
+class _Fetcher:
+    """Build lazily: WeasyPrint's URLFetcher subclass that serves only our own files and data: URLs."""
+
+    _cls = None
+
+    @classmethod
+    def make(cls):
+        if cls._cls is None:
+            from weasyprint.urls import FatalURLFetchingError, URLFetcher, URLFetcherResponse
+
+            roots = [templates_dir().resolve(), fonts_dir().resolve()]
+
+            class RestrictedFetcher(URLFetcher):
+                """Serves data: URLs and files under calcdoc's templates and matplotlib's fonts; refuses the rest."""
+
+                def fetch(self, url, headers=None):
+                    if url.startswith("data:"):
+                        return super().fetch(url, headers)
+                    if url.startswith("file://"):
+                        from urllib.parse import unquote, urlsplit
+
+                        path = Path(unquote(urlsplit(url).path)).resolve()
+                        if any(path.is_relative_to(r) for r in roots) and path.is_file():
+                            mime = mimetypes.guess_type(path.name)[0] or "application/octet-stream"
+                            return URLFetcherResponse(url, path.read_bytes(), {"Content-Type": mime})
+                    raise FatalURLFetchingError(f"calcdoc refuses to fetch {url!r}: the report may use only "
+                                                "its own templates and fonts")
+
+            cls._cls = RestrictedFetcher
+        return cls._cls(allowed_protocols=("file", "data"), allow_redirects=False, fail_on_errors=True)
+
+
+def render_pdf(results, results_json: str) -> bytes:
+    """The calc package as PDF bytes, with the job file and the results JSON attached."""
+    from weasyprint import HTML, Attachment
+
+    html = render_html(results)
+    job = results.job
+    epoch = _epoch(job.calc.date)
+    stamp = _dt.datetime.fromtimestamp(epoch, _dt.timezone.utc)
+    base = safe_stem(job.calc.number, job.calc.revision)
+    attachments = [
+        Attachment(string=job.data, name=Path(job.name).name or "job.yaml", description="Job file, byte for byte",
+                   created=stamp, modified=stamp, relationship="Source"),
+        Attachment(string=results_json.encode("utf-8"), name=f"{base}.json", description="Results (calcdoc JSON)",
+                   created=stamp, modified=stamp, relationship="Data"),
+    ]
+    fetcher = _Fetcher.make()
+    doc = HTML(string=html, base_url=templates_dir().as_uri() + "/", url_fetcher=fetcher)
+    # fontTools stamps the clock into every embedded font subset unless SOURCE_DATE_EPOCH is set
+    # (LIBRARY-NOTES): pin it to the calc date for this rendering only.
+    saved = os.environ.get("SOURCE_DATE_EPOCH")
+    os.environ["SOURCE_DATE_EPOCH"] = str(epoch)
+    try:
+        return doc.write_pdf(attachments=attachments, pdf_identifier=job.sha256[:32].encode("ascii"))
+    finally:
+        if saved is None:
+            os.environ.pop("SOURCE_DATE_EPOCH", None)
+        else:
+            os.environ["SOURCE_DATE_EPOCH"] = saved
+
+
+def _epoch(date_text: str) -> int:
+    try:
+        d = _dt.date.fromisoformat(str(date_text)[:10])
+    except ValueError:
+        return 0
+    return int(_dt.datetime(d.year, d.month, d.day, tzinfo=_dt.timezone.utc).timestamp())
+
+
+def safe_stem(number: str, revision: str) -> str:
+    """A file name stem from calc number and revision: letters, digits, '-', '_' and '.' only."""
+    import re
+
+    stem = re.sub(r"[^A-Za-z0-9._-]+", "_", f"{number}_rev{revision}").strip("._") or "calc"
+    return stem[:120]

@@ -1,0 +1,147 @@
+"""Results of a job: states, legs, checks and warnings, and their JSON form (the contract)."""
+from __future__ import annotations
+
+import json
+import math
+from dataclasses import dataclass, field
+from typing import Any
+
+from .calc import Calc
+from .gas import State
+
+RESULTS_SCHEMA = "calcdoc-results/1"
+
+
+@dataclass(frozen=True)
+class StateRecord:
+    """A numbered state of the job: label, the state, and extensive values where the mass is known."""
+
+    number: int
+    label: str
+    state: State
+    V: float | None = None         # volume of the fixed mass [m3] (closed system)
+    V_dot: float | None = None     # actual volume flow [m3/s] (steady flow)
+
+
+@dataclass(frozen=True)
+class Check:
+    name: str
+    quantity: str
+    where: str
+    value: Calc
+    limit: float
+    kind: str                      # "max" or "min"
+    unit: str
+    margin: float                  # limit − value for max, value − limit for min (SI)
+    margin_pct: float
+    required_margin: float
+    status: str                    # "pass" or "fail"
+    basis: str = ""
+    difference: bool = False
+
+
+@dataclass(frozen=True)
+class Results:
+    job: Any                                   # the Job it came from
+    gas: Any                                   # the Gas model used
+    system: str
+    mass: Calc | None
+    flow: dict[str, Calc]
+    states: tuple[StateRecord, ...]
+    legs: tuple[Any, ...]                      # LegResult (closed) or flow leg results
+    start_calcs: tuple[Calc, ...]
+    checks: tuple[Check, ...] = ()
+    warnings: tuple[str, ...] = ()
+    basis: dict[str, Any] = field(default_factory=dict)
+    software: dict[str, str] = field(default_factory=dict)
+    extra: dict[str, Any] = field(default_factory=dict)
+    saturation: tuple | None = None            # (T, P, v, s) points of the saturation dome, for charts
+
+    @property
+    def passed(self) -> bool:
+        return all(c.status == "pass" for c in self.checks)
+
+    def methods_used(self) -> list[str]:
+        """Method ids in first-use order over the whole job."""
+        seen: dict[str, None] = {}
+        for c in self.all_calcs():
+            seen.setdefault(c.method, None)
+        return list(seen)
+
+    def all_calcs(self):
+        yield from self.start_calcs
+        if self.mass is not None:
+            yield self.mass
+        yield from self.flow.values()
+        for leg in self.legs:
+            yield from leg.calcs
+        for c in self.checks:
+            yield c.value
+
+
+def q(value: float | None, unit: str) -> dict:
+    """A quantity in the results file: SI value (null where infinite or undefined) and its unit."""
+    if value is None or (isinstance(value, float) and not math.isfinite(value)):
+        return {"value": None, "unit": unit}
+    return {"value": value, "unit": unit}
+
+
+def state_json(rec: StateRecord) -> dict:
+    s = rec.state
+    out = {"label": rec.label, "P": q(s.P, "Pa"), "T": q(s.T, "K"), "v": q(s.v, "m**3/kg"), "rho": q(s.rho, "kg/m**3"),
+           "u": q(s.u, "J/kg"), "h": q(s.h, "J/kg"), "s": q(s.s, "J/(kg*K)"), "Z": q(s.Z, ""), "phase": s.phase}
+    if s.quality is not None:
+        out["quality"] = q(s.quality, "")
+    if rec.V is not None:
+        out["V"] = q(rec.V, "m**3")
+    if rec.V_dot is not None:
+        out["V_dot"] = q(rec.V_dot, "m**3/s")
+    return out
+
+
+def to_json(res: Results) -> dict:
+    job = res.job
+    t = job.calc
+    legs = []
+    for leg in res.legs:
+        item = {"name": leg.name, "process": leg.process, "from": res.states[leg.i - 1].label,
+                "to": res.states[leg.i].label}
+        for key, c in leg.quantities.items():
+            item[key] = q(c.value, c.unit)
+        if "n" not in item:
+            item["n"] = q(None, "")
+        item["calcs"] = [c.trace() for c in leg.calcs]
+        legs.append(item)
+    checks = [{"name": c.name, "quantity": c.quantity, "at": c.where, "value": q(c.value.value, c.unit),
+               "limit": q(c.limit, c.unit), "type": c.kind, "margin": q(c.margin, c.unit),
+               "margin_percent": c.margin_pct, "required_margin": q(c.required_margin, c.unit),
+               "status": c.status, "basis": c.basis} for c in res.checks]
+    out = {
+        "schema": RESULTS_SCHEMA,
+        "calc": {"number": t.number, "title": t.title, "project": t.project, "client": t.client,
+                 "revision": t.revision, "date": t.date, "prepared_by": t.prepared_by, "checked_by": t.checked_by,
+                 "approved_by": t.approved_by},
+        "input_sha256": job.sha256,
+        "software": dict(res.software),
+        "system": res.system,
+        "gas": res.basis.get("gas", {}),
+        "site": res.basis.get("site", {}),
+        "mass": q(res.mass.value, "kg") if res.mass is not None else None,
+        "flow": {k: q(c.value, c.unit) for k, c in res.flow.items()},
+        "states": [state_json(r) for r in res.states],
+        "legs": legs,
+        "checks": checks,
+        "passed": res.passed,
+        "warnings": list(res.warnings),
+    }
+    if res.system == "closed":
+        out.pop("flow")
+    else:
+        out.pop("mass")
+    out.update(res.extra)
+    return out
+
+
+def dumps(res: Results) -> str:
+    """The results file as text: sorted by our key order, fixed float formatting, no NaN."""
+    return json.dumps(to_json(res), indent=2, ensure_ascii=False, allow_nan=False) + "\n"

@@ -1,0 +1,350 @@
+"""The one place where units are parsed and converted.
+
+Inside calcdoc every physical value is an SI float (Pa, K, m3, kg, J, W, ...), pressures absolute and
+temperatures absolute. This module turns what a user wrote (``7 barg``, ``25 degC``, ``50 L``) into
+those floats, remembers how it was entered, and converts SI values back to the report's unit system.
+
+pint is imported lazily and one registry serves the whole program (pint docs: "a single registry
+per application").
+"""
+from __future__ import annotations
+
+import math
+import re
+from dataclasses import dataclass
+from functools import lru_cache
+
+__all__ = [
+    "DIMENSIONS",
+    "Parsed",
+    "UnitParseError",
+    "display",
+    "display_unit",
+    "parse_quantity",
+    "registry",
+    "standard_atmosphere_pressure",
+    "to_si",
+]
+
+#: Standard atmosphere at sea level [Pa] (U.S. Standard Atmosphere, 1976, table 1; ISO 2533:1975).
+P_STD = 101325.0
+
+#: SI unit of each dimension calcdoc accepts, as pint spells it.
+DIMENSIONS: dict[str, str] = {
+    "pressure": "Pa",
+    "pressure_difference": "Pa",
+    "temperature": "K",
+    "temperature_difference": "K",
+    "volume": "m**3",
+    "mass": "kg",
+    "length": "m",
+    "molar_mass": "kg/mol",
+    "specific_gas_constant": "J/(kg*K)",
+    "specific_volume": "m**3/kg",
+    "specific_energy": "J/kg",
+    "specific_entropy": "J/(kg*K)",
+    "energy": "J",
+    "entropy": "J/K",
+    "power": "W",
+    "mass_flow": "kg/s",
+    "molar_flow": "mol/s",
+    "volume_flow": "m**3/s",
+    "density": "kg/m**3",
+    "dimensionless": "",
+}
+
+# Gauge markers: a pressure unit followed by "g" (barg, psig, kPag, MPag) or "(g)"/" gauge".
+_GAUGE = re.compile(r"^(?P<unit>[A-Za-z]+?)(?:g|\s*\(g\)|\s+gauge)$")
+_ABS = re.compile(r"^(?P<unit>[A-Za-z]+?)(?:a|\s*\(a\)|\s+abs(?:olute)?)$")
+_PRESSURE_UNITS = {"bar", "mbar", "psi", "kPa", "MPa", "Pa", "kpa", "mpa", "atm", "inHg", "mmHg", "kgf/cm2"}
+_NUMBER = re.compile(r"^\s*(?P<num>[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(?P<unit>.*?)\s*$")
+_PERCENT = re.compile(r"^\s*(?P<num>[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*%\s*$")
+
+# Spellings engineers write that pint does not know, mapped to pint's.
+_ALIASES = {
+    "m3": "m**3", "cm3": "cm**3", "mm3": "mm**3", "ft3": "ft**3", "in3": "in**3",
+    "L": "liter", "l": "liter", "kpa": "kPa", "mpa": "MPa",
+    "m3/h": "m**3/hour", "m3/s": "m**3/s", "m3/min": "m**3/min", "ft3/min": "ft**3/min",
+    "cfm": "ft**3/min", "acfm": "ft**3/min", "m3/kg": "m**3/kg", "ft3/lb": "ft**3/lb",
+    "kg/h": "kg/hour", "kg/m3": "kg/m**3", "lb/ft3": "lb/ft**3", "lb/h": "lb/hour", "lb/hr": "lb/hour",
+    "degC": "degC", "°C": "degC", "C": "degC", "degF": "degF", "°F": "degF", "F": "degF",
+    "degR": "degR", "R": "degR", "K": "K", "kelvin": "K",
+    "kgf/cm2": "kgf/cm**2", "hp": "hp", "g/mol": "g/mol", "kg/kmol": "kg/kmol",
+}
+_ABSOLUTE_TEMPERATURE_UNITS = {"degC", "degF", "K", "degR"}
+
+
+class UnitParseError(ValueError):
+    """A quantity could not be read; the message says what was found and what would be valid."""
+
+    def __init__(self, found: str, valid: str):
+        self.found = found
+        self.valid = valid
+        super().__init__(f"{found}; {valid}")
+
+
+@lru_cache(maxsize=1)
+def registry():
+    """The one pint registry (created on first use; ~0.3 s)."""
+    import pint
+
+    ureg = pint.UnitRegistry()
+    ureg.define("kmol = 1000 * mol")
+    pint.set_application_registry(ureg)
+    return ureg
+
+
+@dataclass(frozen=True)
+class Parsed:
+    """A quantity as the user entered it and as calcdoc uses it (SI, absolute)."""
+
+    si: float
+    unit: str          # SI unit of ``si`` as pint spells it
+    entered: str       # the text as written in the job file
+    gauge: bool = False
+    percent: bool = False
+
+
+def _pint_unit(text: str) -> str:
+    text = text.strip()
+    return _ALIASES.get(text, text)
+
+
+def standard_atmosphere_pressure(z: float) -> float:
+    """Pressure of the standard atmosphere at a geometric elevation z [m], valid -610 to 11 000 m.
+
+    P = P0 · (T0 / (T0 + L·H))^(g0·M0 / (R*·L)), H = r0·z / (r0 + z)
+
+    Parameters
+    ----------
+    z : float  Geometric elevation above mean sea level [m]
+
+    Returns
+    -------
+    float  Static pressure [Pa]
+
+    Notes
+    -----
+    Troposphere layer only (lapse rate L = -0.0065 K/m over geopotential height H); constants of the
+    1976 standard: P0 = 101 325 Pa, T0 = 288.15 K, g0 = 9.80665 m/s2, M0 = 0.0289644 kg/mol,
+    R* = 8.31432 J/(mol K), r0 = 6 356 766 m.
+
+    References
+    ----------
+    U.S. Standard Atmosphere, 1976. NOAA, NASA, USAF, Washington DC, NOAA-S/T 76-1562, eq. (18) and
+    (33a). ISO 2533:1975 gives the same values to 10 km.
+
+    Example: z = 1000 m gives 89 876 Pa (table 1 of the 1976 standard, from memory).
+    """
+    if not -610.0 <= z <= 11000.0:
+        raise ValueError("elevation outside the troposphere layer of the standard atmosphere (-610 m to 11 000 m)")
+    r0, T0, L, g0, M0, Rstar = 6356766.0, 288.15, -0.0065, 9.80665, 0.0289644, 8.31432
+    H = r0 * z / (r0 + z)
+    return P_STD * (T0 / (T0 + L * H)) ** (g0 * M0 / (Rstar * L))
+
+
+def _split(text: str, kind: str) -> tuple[float, str]:
+    m = _NUMBER.match(text)
+    if not m:
+        raise UnitParseError(f"'{text}' is not a number followed by a unit",
+                             f"write a {kind} as a number and a unit, for example {_EXAMPLES.get(kind, '1 Pa')}")
+    return float(m.group("num")), m.group("unit")
+
+
+_EXAMPLES = {
+    "pressure": "'7 barg', '8 bara', '101.3 kPa' or '120 psig'",
+    "pressure_difference": "'0.2 bar' or '2 %'",
+    "temperature": "'25 degC', '77 degF' or '298.15 K'",
+    "temperature_difference": "'10 K' or '18 delta_degF'",
+    "volume": "'50 L', '0.05 m3' or '3 ft3'",
+    "mass": "'2 kg' or '4.4 lb'",
+    "length": "'450 m' or '1500 ft'",
+    "molar_mass": "'28.97 g/mol' or '28.97 kg/kmol'",
+    "specific_gas_constant": "'287 J/(kg*K)'",
+    "mass_flow": "'12 kg/s' or '3000 kg/h'",
+    "molar_flow": "'100 kmol/h'",
+    "volume_flow": "'1200 m3/h' or '800 ft3/min'",
+    "power": "'250 kW' or '340 hp'",
+    "specific_energy": "'120 kJ/kg'",
+    "specific_volume": "'0.1 m3/kg'",
+    "energy": "'10 kJ'",
+    "dimensionless": "'3.5'",
+}
+
+
+def parse_quantity(value, kind: str, atmosphere: float | None = None, allow_percent: bool = False) -> Parsed:
+    """Read a quantity of the given kind (a key of :data:`DIMENSIONS`) from job-file text.
+
+    Pressures: a unit with a gauge marker (``barg``, ``psig``, ``kPag``, ``bar(g)``, ``bar gauge``) is
+    gauge and needs ``atmosphere`` [Pa]; ``bara``/``psia`` and plain units are absolute.
+    Temperatures in degC/degF/K/degR are absolute temperatures; a difference is refused here (and
+    differences in degC are refused where an absolute is meant).
+    """
+    entered = str(value).strip() if not isinstance(value, bool) else str(value)
+    if isinstance(value, bool) or value is None:
+        raise UnitParseError(f"'{entered}' is not a quantity", f"write a number and a unit, for example {_EXAMPLES.get(kind, '')}")
+    if kind == "dimensionless":
+        if isinstance(value, (int, float)):
+            return Parsed(float(value), "", entered)
+        num, unit = _split(entered, kind)
+        if unit in ("", "-"):
+            return Parsed(num, "", entered)
+        if unit == "%":
+            return Parsed(num / 100.0, "", entered, percent=True)
+        raise UnitParseError(f"'{entered}' has a unit where a plain number is meant", "write a plain number, for example '3.5'")
+    if isinstance(value, (int, float)):
+        raise UnitParseError(f"the number {entered} has no unit",
+                             f"write a {kind.replace('_', ' ')} with its unit, for example {_EXAMPLES.get(kind, '')}")
+    if allow_percent:
+        m = _PERCENT.match(entered)
+        if m:
+            return Parsed(float(m.group("num")) / 100.0, "", entered, percent=True)
+    num, unit_text = _split(entered, kind)
+    if not unit_text:
+        raise UnitParseError(f"'{entered}' has no unit",
+                             f"write a {kind.replace('_', ' ')} with its unit, for example {_EXAMPLES.get(kind, '')}")
+    gauge = False
+    if kind == "pressure":
+        gm = _GAUGE.match(unit_text)
+        am = _ABS.match(unit_text)
+        if gm and gm.group("unit") in _PRESSURE_UNITS:
+            gauge = True
+            unit_text = gm.group("unit")
+        elif am and am.group("unit") in _PRESSURE_UNITS:
+            unit_text = am.group("unit")
+    elif unit_text.endswith(("g", "(g)")) and kind != "pressure" and unit_text[:-1] in _PRESSURE_UNITS:
+        raise UnitParseError(f"'{entered}' is a gauge pressure",
+                             f"a {kind.replace('_', ' ')} cannot be gauge; write it as a plain difference, for example '0.3 bar'")
+    si_unit = DIMENSIONS[kind]
+    if kind in ("temperature",):
+        return _parse_temperature(num, unit_text, entered)
+    if kind == "temperature_difference":
+        return _parse_temperature_difference(num, unit_text, entered)
+    ureg = registry()
+    try:
+        q = ureg.Quantity(num, _pint_unit(unit_text))
+        si = q.to(si_unit).magnitude
+    except Exception as exc:  # pint raises several unrelated types for bad unit text
+        raise UnitParseError(
+            f"'{entered}': {_unit_problem(unit_text, exc, kind)}",
+            f"write a {kind.replace('_', ' ')} such as {_EXAMPLES.get(kind, '')}") from None
+    if gauge:
+        if atmosphere is None:
+            raise UnitParseError(
+                f"'{entered}' is a gauge pressure but the job gives no site atmosphere",
+                "add site: {atmosphere: 101.325 kPa} or site: {elevation: 450 m}, or write the pressure as absolute (bara, psia, kPa)")
+        si = si + atmosphere
+    return Parsed(float(si), si_unit, entered, gauge=gauge)
+
+
+def _unit_problem(unit_text: str, exc: Exception, kind: str) -> str:
+    name = type(exc).__name__
+    if name == "DimensionalityError":
+        return f"'{unit_text}' is not a unit of {kind.replace('_', ' ')}"
+    return f"'{unit_text}' is not a unit calcdoc knows"
+
+
+def _parse_temperature(num: float, unit_text: str, entered: str) -> Parsed:
+    unit = _pint_unit(unit_text)
+    if unit in ("delta_degC", "delta_degF", "Δ°C", "ΔdegC"):
+        raise UnitParseError(f"'{entered}' is a temperature difference where an absolute temperature is meant",
+                             "write the temperature itself, for example '25 degC' or '298.15 K'")
+    if unit not in _ABSOLUTE_TEMPERATURE_UNITS:
+        ureg = registry()
+        try:
+            ureg.Quantity(1.0, unit).to("K")
+        except Exception:
+            raise UnitParseError(f"'{entered}': '{unit_text}' is not a unit of temperature",
+                                 "write a temperature such as '25 degC', '77 degF' or '298.15 K'") from None
+    ureg = registry()
+    T = ureg.Quantity(num, unit).to("K").magnitude  # offset units converted as absolute temperatures
+    return Parsed(float(T), "K", entered)
+
+
+def _parse_temperature_difference(num: float, unit_text: str, entered: str) -> Parsed:
+    unit = {"K": "K", "kelvin": "K", "degR": "degR", "R": "degR", "delta_degC": "K", "delta_degF": "degR",
+            "degC": None, "°C": None, "degF": None, "°F": None}.get(unit_text.strip(), "?")
+    if unit is None:
+        raise UnitParseError(f"'{entered}' is ambiguous as a temperature difference",
+                             "write a difference in K or delta_degC (or degR or delta_degF)")
+    if unit == "?":
+        raise UnitParseError(f"'{entered}': '{unit_text}' is not a unit of temperature difference",
+                             "write a difference such as '10 K' or '18 delta_degF'")
+    ureg = registry()
+    return Parsed(float(ureg.Quantity(num, unit).to("K").magnitude), "K", entered)
+
+
+def to_si(value: float, unit: str, kind: str) -> float:
+    """Convert a plain value in a pint-readable unit to SI (absolute temperatures for offset units)."""
+    ureg = registry()
+    return float(ureg.Quantity(value, _pint_unit(unit)).to(DIMENSIONS[kind]).magnitude)
+
+
+# Display units of the report's unit systems, by the SI unit of the value.
+_SYSTEMS = {
+    "SI": {
+        "Pa": "kPa", "K": "degC", "m**3": "m**3", "kg": "kg", "m**3/kg": "m**3/kg",
+        "J/kg": "kJ/kg", "J/(kg*K)": "kJ/(kg*K)", "J": "kJ", "J/K": "kJ/K", "W": "kW",
+        "kg/s": "kg/s", "mol/s": "kmol/h", "m**3/s": "m**3/h", "kg/m**3": "kg/m**3", "": "",
+        "kg/mol": "g/mol", "m": "m",
+    },
+    "US": {
+        "Pa": "psi", "K": "degF", "m**3": "ft**3", "kg": "lb", "m**3/kg": "ft**3/lb",
+        "J/kg": "Btu/lb", "J/(kg*K)": "Btu/(lb*degR)", "J": "Btu", "J/K": "Btu/degR", "W": "hp",
+        "kg/s": "lb/hour", "mol/s": "lbmol/hour", "m**3/s": "ft**3/min", "kg/m**3": "lb/ft**3", "": "",
+        "kg/mol": "lb/lbmol", "m": "ft",
+    },
+}
+_PRETTY = {
+    "kPa": "kPa", "psi": "psia", "degC": "°C", "degF": "°F", "m**3": "m³", "ft**3": "ft³", "kg": "kg", "lb": "lb",
+    "m**3/kg": "m³/kg", "ft**3/lb": "ft³/lb", "kJ/kg": "kJ/kg", "Btu/lb": "Btu/lb", "kJ/(kg*K)": "kJ/(kg·K)",
+    "Btu/(lb*degR)": "Btu/(lb·°R)", "kJ": "kJ", "Btu": "Btu", "kJ/K": "kJ/K", "Btu/degR": "Btu/°R", "kW": "kW",
+    "hp": "hp", "kg/s": "kg/s", "lb/hour": "lb/h", "kmol/h": "kmol/h", "lbmol/hour": "lbmol/h",
+    "m**3/h": "m³/h", "ft**3/min": "ft³/min", "kg/m**3": "kg/m³", "lb/ft**3": "lb/ft³", "": "",
+    "g/mol": "g/mol", "lb/lbmol": "lb/lbmol", "m": "m", "ft": "ft", "K": "K", "Pa": "Pa",
+    "J/kg": "J/kg", "J/(kg*K)": "J/(kg·K)", "J": "J", "J/K": "J/K", "W": "W", "m**3/s": "m³/s",
+    "kg/mol": "kg/mol", "mol/s": "mol/s",
+}
+
+
+def display_unit(si_unit: str, system: str) -> str:
+    """The unit a report in ``system`` (SI or US) shows a value of SI unit ``si_unit`` in."""
+    return _SYSTEMS[system].get(si_unit, si_unit)
+
+
+def pretty_unit(unit: str) -> str:
+    """A unit as typeset in the report (m³, °C, kJ/(kg·K))."""
+    return _PRETTY.get(unit, unit.replace("**", "^").replace("*", "·"))
+
+
+@lru_cache(maxsize=256)
+def _factor(si_unit: str, unit: str) -> tuple[float, float]:
+    """Scale and offset with value_unit = scale * value_si + offset."""
+    ureg = registry()
+    if si_unit == unit or si_unit == "":
+        return 1.0, 0.0
+    a = ureg.Quantity(0.0, si_unit).to(unit).magnitude
+    b = ureg.Quantity(1.0, si_unit).to(unit).magnitude
+    return b - a, a
+
+
+def convert(value_si: float, si_unit: str, unit: str, difference: bool = False) -> float:
+    """An SI value in another unit; ``difference`` converts a temperature difference (no offset)."""
+    scale, offset = _factor(si_unit, unit)
+    return value_si * scale + (0.0 if difference else offset)
+
+
+def display(value_si: float, si_unit: str, system: str, difference: bool = False) -> tuple[float, str]:
+    """An SI value converted for a report in ``system``: (number, pretty unit).
+
+    Temperature differences (``difference=True``) are shown in K (SI) or °R (US), never in °C or °F.
+    """
+    unit = display_unit(si_unit, system)
+    if difference and si_unit == "K":
+        unit = "K" if system == "SI" else "degR"
+    if difference and si_unit == "J/(kg*K)":
+        pass
+    val = convert(value_si, si_unit, unit, difference=difference)
+    if not math.isfinite(val):
+        return val, pretty_unit(unit)
+    return val, pretty_unit(unit) if unit != "degR" else "°R"

@@ -1,0 +1,39 @@
+#!/usr/bin/env bash
+# Set up calcdoc on a fresh Debian machine with Python 3.11: system libraries for PDF rendering
+# (Pango, via apt when missing), a virtual environment in .venv, and calcdoc with its test tools.
+# Safe to run again: it reinstalls only when pyproject.toml has changed.
+set -euo pipefail
+cd "$(dirname "$0")/.."
+
+PY=${PYTHON:-}
+if [ -z "$PY" ]; then
+  for cand in python3.11 python3; do
+    if command -v "$cand" >/dev/null 2>&1; then PY=$cand; break; fi
+  done
+fi
+[ -n "$PY" ] || { echo "setup: Python 3.11 is needed (python3.11 or python3 on PATH)" >&2; exit 1; }
+
+# WeasyPrint renders with Pango; install it from Debian's packages when it is not there.
+if ! "$PY" -c "import ctypes.util, sys; sys.exit(0 if ctypes.util.find_library('pango-1.0') and ctypes.util.find_library('pangoft2-1.0') else 1)"; then
+  if [ "$(id -u)" = 0 ] && command -v apt-get >/dev/null 2>&1; then
+    echo "setup: installing Pango (Debian packages) for PDF rendering"
+    apt-get update -qq
+    DEBIAN_FRONTEND=noninteractive apt-get install -y -qq libpango-1.0-0 libpangoft2-1.0-0 libharfbuzz0b >/dev/null
+  else
+    echo "setup: Pango is missing; install it with: sudo apt-get install libpango-1.0-0 libpangoft2-1.0-0" >&2
+    exit 1
+  fi
+fi
+
+if [ ! -x .venv/bin/python ]; then
+  echo "setup: creating .venv"
+  "$PY" -m venv .venv
+fi
+stamp=.venv/.calcdoc-installed
+want=$(cat pyproject.toml | sha256sum | cut -d' ' -f1)
+if [ ! -f "$stamp" ] || [ "$(cat "$stamp")" != "$want" ]; then
+  echo "setup: installing calcdoc and its dependencies into .venv"
+  .venv/bin/python -m pip install --quiet --disable-pip-version-check --upgrade pip
+  .venv/bin/python -m pip install --quiet --disable-pip-version-check -e ".[test]"
+  echo "$want" > "$stamp"
+fi
