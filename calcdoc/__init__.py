@@ -7,7 +7,6 @@ Library use::
     results = calcdoc.run(job)
     calcdoc.write(results, "out")        # results JSON and the PDF calc package
 """
-from __future__ import annotations
 
 __version__ = "0.1.0"
 

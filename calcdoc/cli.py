@@ -121,20 +121,27 @@ def _run_one(path: str, args) -> int:
 
 
 def _summary(results, written) -> None:
-    from .report.format import num
+    from .report.format import _num
+    from .units import display
 
+    system = results.job.units
     t = results.job.calc
+
+    def show(value, unit, sig=5):
+        v, u = display(value, unit, system)
+        return f"{_num(v, sig)} {u}".replace("\u2009", " ")
+
     print(f"{t.number} rev {t.revision}: {t.title}")
     print(f"  gas: {results.gas.describe()}")
     for rec in results.states:
         s = rec.state
-        print(f"  state {rec.label:>3}: P = {num(s.P / 1e3, 5):>10} kPa   T = {num(s.T - 273.15, 5):>8} °C   "
-              f"v = {num(s.v, 4)} m³/kg   {s.phase}")
+        print(f"  state {rec.label:>3}: P = {show(s.P, 'Pa'):>14}   T = {show(s.T, 'K'):>10}   "
+              f"v = {show(s.v, 'm**3/kg', 4)}   {s.phase}")
     for leg in results.legs:
         qd = leg.quantities
         if "W_by_gas" in qd:
-            print(f"  leg {leg.i}→{leg.i + 1} {leg.name} ({leg.process}): W by gas = {num(qd['W_by_gas'].value / 1e3, 5)} kJ, "
-                  f"Q to gas = {num(qd['Q_to_gas'].value / 1e3, 5)} kJ")
+            print(f"  leg {leg.i}→{leg.i + 1} {leg.name} ({leg.process}): W by gas = {show(qd['W_by_gas'].value, 'J')}, "
+                  f"Q to gas = {show(qd['Q_to_gas'].value, 'J')}")
         else:
             print(f"  leg {leg.i}→{leg.i + 1} {leg.name} ({leg.process})")
     for c in results.checks:
