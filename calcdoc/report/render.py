@@ -101,6 +101,7 @@ def context(results) -> dict:
         "eos_nums": eos_nums,
         "input_legs": input_legs,
         "job_lines": lines,
+        "job_file_name": job_file_name(job),
         "cautions": CAUTIONS,
         "engine_assumptions": ENGINE_ASSUMPTIONS.get(results.system, ()),
         "inputs": sorted(job.inputs, key=lambda i: (i.line, i.col)),
@@ -110,6 +111,11 @@ def context(results) -> dict:
         "fonts_url": fonts_dir().as_uri(),
         "title_text": f"{job.calc.number} rev. {job.calc.revision} — {job.calc.title}",
     }
+
+
+def job_file_name(job) -> str:
+    """The job file's own name, without its folder (the PDF never shows where it was run)."""
+    return Path(job.name.replace("\\", "/")).name or "job.yaml"
 
 
 def _leg_of(job, path: str) -> str:
@@ -169,11 +175,14 @@ def render_pdf(results, results_json: str) -> bytes:
     stamp = _dt.datetime.fromtimestamp(epoch, _dt.timezone.utc)
     base = safe_stem(job.calc.number, job.calc.revision)
     attachments = [
-        Attachment(string=job.data, name=Path(job.name).name or "job.yaml", description="Job file, byte for byte",
+        Attachment(string=job.data, name=job_file_name(job), description="Job file, byte for byte",
                    created=stamp, modified=stamp, relationship="Source"),
         Attachment(string=results_json.encode("utf-8"), name=f"{base}.json", description="Results (calcdoc JSON)",
                    created=stamp, modified=stamp, relationship="Data"),
     ]
+    # PDF/A-3b is not claimed: WeasyPrint can write pdf_variant="pdf/a-3b", but no conformance
+    # validator (such as veraPDF) can be installed on our machines, so the claim could not be checked
+    # (LIBRARY-NOTES: one build listed the attachment twice). Plain PDF with embedded files until then.
     fetcher = _Fetcher.make()
     doc = HTML(string=html, base_url=templates_dir().as_uri() + "/", url_fetcher=fetcher)
     # fontTools stamps the clock into every embedded font subset unless SOURCE_DATE_EPOCH is set
