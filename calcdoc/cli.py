@@ -35,6 +35,16 @@ def build_parser() -> argparse.ArgumentParser:
     c = sub.add_parser("check", help="validate job file(s) without computing or writing anything",
                        description="Read and validate job files; report every problem found (exit 2) or OK (exit 0).")
     c.add_argument("jobs", nargs="+", metavar="JOB.yaml")
+    v = sub.add_parser("verify", help="check a calc package PDF: its attached job file, hashes and results",
+                       description="Extract the job file attached to REPORT.pdf and check its sha256 against the hash "
+                                   "printed in the report and in the attached results. Given JOB.yaml, say whether "
+                                   "the report was made from it. With --rerun, compute the attached job again and "
+                                   "compare the results.",
+                       epilog="Exit codes: 0 everything matches; 1 a mismatch (altered report or attachment, another "
+                              "job file, different results); 2 bad input (not a calcdoc PDF, missing file).")
+    v.add_argument("report", metavar="REPORT.pdf")
+    v.add_argument("job", nargs="?", metavar="JOB.yaml", help="the job file the report is claimed to come from")
+    v.add_argument("--rerun", action="store_true", help="recompute the attached job and compare the results")
     return p
 
 
@@ -46,6 +56,8 @@ def main(argv: list[str] | None = None) -> int:
         return EXIT_OK
     if args.command == "check":
         return _check(args)
+    if args.command == "verify":
+        return _verify(args)
     return _run(args)
 
 
@@ -61,6 +73,18 @@ def _check(args) -> int:
             _print_job_error(exc)
             worst = EXIT_BAD_INPUT
     return worst
+
+
+def _verify(args) -> int:
+    from .verify import verify
+
+    try:
+        result = verify(args.report, args.job, rerun=args.rerun)
+    except CalcdocError as exc:
+        print(f"error: {exc}", file=sys.stderr)
+        return EXIT_BAD_INPUT
+    print("\n".join(result.lines()))
+    return EXIT_OK if result.ok else EXIT_CHECK_FAILED
 
 
 def _print_job_error(exc: JobError) -> None:

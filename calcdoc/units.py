@@ -90,6 +90,7 @@ def registry():
 
     ureg = pint.UnitRegistry()
     ureg.define("kmol = 1000 * mol")
+    ureg.define("lbmol = 453.59237 * mol")     # pound-mole: the avoirdupois pound is 453.592 37 g (exact)
     pint.set_application_registry(ureg)
     return ureg
 

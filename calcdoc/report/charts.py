@@ -7,6 +7,7 @@ from __future__ import annotations
 
 import base64
 import io
+import math
 
 from .. import units
 
@@ -69,16 +70,17 @@ def diagrams(results, system: str) -> dict[str, str]:
         allP += P
         ax.plot(v, P, color=PALETTE[k % len(PALETTE)], label=f"{leg.i}→{leg.i + 1}  {leg.name}")
     _mark_states(ax, results, system, "v", "P")
+    vs = Ps = None
     if sat:
         vs = _conv([p[2] for p in sat], "m**3/kg", system)
         Ps = _conv([p[1] for p in sat], "Pa", system)
-        ax.plot(vs, Ps, color="#888888", lw=0.9, ls="--", label="saturation")
+        _dome(ax, vs, Ps)
     if allv and max(allv) / max(min(allv), 1e-300) > 6:
         ax.set_xscale("log")
     if allP and max(allP) / max(min(allP), 1e-300) > 6:
         ax.set_yscale("log")
     if allv:
-        _limits(ax, allv, allP)
+        _limits(ax, allv, allP, vs, Ps)
     ax.set_xlabel(_label("specific volume v", "m**3/kg", system))
     ax.set_ylabel(_label("pressure P (absolute)", "Pa", system))
     ax.legend(fontsize=7.5, loc="best")
@@ -94,12 +96,13 @@ def diagrams(results, system: str) -> dict[str, str]:
         allT += T
         ax.plot(s, T, color=PALETTE[k % len(PALETTE)], label=f"{leg.i}→{leg.i + 1}  {leg.name}")
     _mark_states(ax, results, system, "s", "T")
+    ss = Ts = None
     if sat:
         ss = _conv([p[3] for p in sat], "J/(kg*K)", system)
         Ts = _conv([p[0] for p in sat], "K", system)
-        ax.plot(ss, Ts, color="#888888", lw=0.9, ls="--", label="saturation")
+        _dome(ax, ss, Ts)
     if alls:
-        _limits(ax, alls, allT)
+        _limits(ax, alls, allT, ss, Ts)
     ax.set_xlabel(_label("specific entropy s", "J/(kg*K)", system) + "  (differences only)")
     ax.set_ylabel(_label("temperature T", "K", system))
     ax.legend(fontsize=7.5, loc="best")
@@ -108,15 +111,38 @@ def diagrams(results, system: str) -> dict[str, str]:
     return out
 
 
-def _limits(ax, xs, ys):
-    """Frame the process, not the whole saturation dome."""
+def _dome(ax, xs, ys):
+    """The saturation dome (liquid line, then vapour line back): a dashed outline over a light fill."""
+    ax.fill(xs, ys, color="#e6e3dc", zorder=0, lw=0)
+    ax.plot(xs, ys, color="#7d7d7d", lw=0.9, ls="--", zorder=1, label="saturation (two-phase inside)")
+
+
+def _limits(ax, xs, ys, dome_x=None, dome_y=None):
+    """Frame the process, widened to take in the part of the saturation dome that lies near it."""
+    logx, logy = ax.get_xscale() == "log", ax.get_yscale() == "log"
+
+    def t(v, log):
+        return math.log(v) if log else v
+
     def pad(lo, hi, log):
         if log:
             return lo / 1.25, hi * 1.25
         span = (hi - lo) or abs(hi) * 0.1 or 1.0
         return lo - 0.08 * span, hi + 0.08 * span
-    ax.set_xlim(*pad(min(xs), max(xs), ax.get_xscale() == "log"))
-    ax.set_ylim(*pad(min(ys), max(ys), ax.get_yscale() == "log"))
+    x0, x1, y0, y1 = min(xs), max(xs), min(ys), max(ys)
+    if dome_x:
+        # "near": within the process's own extent again on every side (in the scale of each axis)
+        ex = (t(x1, logx) - t(x0, logx)) or abs(t(x1, logx)) * 0.2 or 1.0
+        ey = (t(y1, logy) - t(y0, logy)) or abs(t(y1, logy)) * 0.2 or 1.0
+        near = [(x, y) for x, y in zip(dome_x, dome_y)
+                if (not logx or x > 0) and (not logy or y > 0)
+                and t(x0, logx) - ex <= t(x, logx) <= t(x1, logx) + ex
+                and t(y0, logy) - ey <= t(y, logy) <= t(y1, logy) + ey]
+        if near:
+            x0, x1 = min(x0, *(p[0] for p in near)), max(x1, *(p[0] for p in near))
+            y0, y1 = min(y0, *(p[1] for p in near)), max(y1, *(p[1] for p in near))
+    ax.set_xlim(*pad(x0, x1, logx))
+    ax.set_ylim(*pad(y0, y1, logy))
 
 
 def _mark_states(ax, results, system, x, y):

@@ -52,12 +52,13 @@ def _num(x: float | None, sig: int = 5, strip: bool = False) -> str:
     return f"{mant.replace('-', '−')}×10<sup>{int(exp)}</sup>"
 
 
-def qty(value: float | None, si_unit: str, system: str, sig: int = 5, difference: bool = False) -> Markup:
+def qty(value: float | None, si_unit: str, system: str, sig: int = 5, difference: bool = False,
+        strip: bool = False) -> Markup:
     """A value with its unit in the report's unit system."""
     if value is None:
         return Markup("—")
     v, u = units.display(value, si_unit, system, difference=difference)
-    return Markup(num(v, sig) + ("\u202f" + u if u else ""))
+    return Markup(num(v, sig, strip) + ("\u202f" + u if u else ""))
 
 
 def unit_of(si_unit: str, system: str, difference: bool = False) -> str:
@@ -83,11 +84,31 @@ def subst_value(t: Term) -> str:
     return f"{num(t.value, 6, strip=True)}\u202f{units.pretty_unit(t.unit)}"
 
 
-def result_si(c: Calc) -> str:
-    return subst_value(Term(c.symbol, c.value, c.unit))
+def result_si(c: Calc) -> Markup:
+    """The result of a calc in the coherent units of its substituted equation (kPa, kJ, K)."""
+    return Markup(subst_value(Term(c.symbol, c.value, c.unit)))
 
 
 _SYM = re.compile(r"([A-Za-zΔηρ]+)_(\{[^}]*\}|[A-Za-z0-9]+)")
+_LETTER = re.compile(r"(?<![A-Za-z&#])([A-Za-z])(?![A-Za-z;])")
+
+
+def _plain(text: str, italic: bool) -> str:
+    """Escaped text between symbols; in equations a lone Latin letter is a variable, set in italics."""
+    out = str(escape(text))
+    return _LETTER.sub(r"<i>\1</i>", out) if italic else out
+
+
+def subscripts(text: str) -> Markup:
+    """Plain text with the trade's subscripts typeset (P_0 → P₀), nothing else changed (notes)."""
+    out = []
+    pos = 0
+    for m in _SYM.finditer(text):
+        out.append(str(escape(text[pos:m.start()])))
+        out.append(f"{escape(m.group(1))}<sub>{escape(m.group(2).strip('{}'))}</sub>")
+        pos = m.end()
+    out.append(str(escape(text[pos:])))
+    return Markup("".join(out))
 
 
 def symbol(text: str) -> Markup:
@@ -95,17 +116,15 @@ def symbol(text: str) -> Markup:
     out = []
     pos = 0
     for m in _SYM.finditer(text):
-        out.append(str(escape(text[pos:m.start()])))
+        out.append(_plain(text[pos:m.start()], True))
         base, sub = m.group(1), m.group(2).strip("{}")
         out.append(f"<i>{escape(base)}</i><sub>{escape(sub)}</sub>" if base not in ("Δ",) else
                    f"{escape(base)}<sub>{escape(sub)}</sub>")
         pos = m.end()
     rest = text[pos:]
-    if rest and not out and re.fullmatch(r"[A-Za-z]", rest):
-        return Markup(f"<i>{escape(rest)}</i>")
     if rest and re.fullmatch(r"Δ[A-Z]", rest):
         return Markup(f"Δ<i>{escape(rest[1])}</i>")
-    out.append(str(escape(rest)))
+    out.append(_plain(rest, True))
     return Markup("".join(out))
 
 
@@ -151,7 +170,7 @@ def _typeset(src: str, field) -> str:
             else:
                 m = re.match(r"[A-Za-z0-9.]+", src[i:])
                 tok = m.group(0) if m else ""
-                out.append(f"<sup>{escape(tok)}</sup>")
+                out.append(f"<sup>{symbol(tok)}</sup>")
                 i += len(tok)
         else:
             m = re.match(r"[^{^]+", src[i:])

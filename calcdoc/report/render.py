@@ -57,7 +57,7 @@ def _env():
                              trim_blocks=True, lstrip_blocks=True)
     env.filters.update(num=fmt.num, qty=fmt.qty, unit_of=fmt.unit_of, value_in=fmt.value_in,
                        symbol=fmt.symbol, eq=fmt.equation, result_si=fmt.result_si,
-                       css_string=fmt.css_string)
+                       css_string=fmt.css_string, subscripts=fmt.subscripts)
     return env
 
 
@@ -79,6 +79,8 @@ def context(results) -> dict:
     if results.gas.model == "real" or results.gas.eos_refs:
         eos_nums = [ref_no[k] for k in results.gas.eos_refs if k in ref_no]
         cite["eos.real"] = sorted(set(cite.get("eos.real", []) + eos_nums))
+    eos_nums = [ref_no[k] for k in getattr(results.gas, "eos_refs", ()) if k in ref_no]
+    input_legs = {i.path: _leg_of(job, i.path) for i in job.inputs}
     lines = job.text.splitlines()
     from ..engine import software_versions  # versions only; no computation
 
@@ -95,7 +97,11 @@ def context(results) -> dict:
         "methods": methods,
         "cite": cite,
         "references": [(ref_no[k], methods.reference(k)) for k in ref_keys],
+        "eos_refs": [(n, methods.reference(ref_keys[n - 1])) for n in eos_nums],
+        "eos_nums": eos_nums,
+        "input_legs": input_legs,
         "job_lines": lines,
+        "job_file_name": job_file_name(job),
         "cautions": CAUTIONS,
         "engine_assumptions": ENGINE_ASSUMPTIONS.get(results.system, ()),
         "inputs": sorted(job.inputs, key=lambda i: (i.line, i.col)),
@@ -105,6 +111,22 @@ def context(results) -> dict:
         "fonts_url": fonts_dir().as_uri(),
         "title_text": f"{job.calc.number} rev. {job.calc.revision} — {job.calc.title}",
     }
+
+
+def job_file_name(job) -> str:
+    """The job file's own name, without its folder (the PDF never shows where it was run)."""
+    return Path(job.name.replace("\\", "/")).name or "job.yaml"
+
+
+def _leg_of(job, path: str) -> str:
+    """The name of the leg an input path belongs to (legs[1].end.volume → its leg name), else ''."""
+    import re
+
+    m = re.match(r"legs\[(\d+)\]", path)
+    if not m:
+        return ""
+    k = int(m.group(1))
+    return next((leg.name for leg in job.legs if leg.path == f"legs[{k}]"), "")
 
 
 def render_html(results) -> str:
@@ -153,11 +175,14 @@ def render_pdf(results, results_json: str) -> bytes:
     stamp = _dt.datetime.fromtimestamp(epoch, _dt.timezone.utc)
     base = safe_stem(job.calc.number, job.calc.revision)
     attachments = [
-        Attachment(string=job.data, name=Path(job.name).name or "job.yaml", description="Job file, byte for byte",
+        Attachment(string=job.data, name=job_file_name(job), description="Job file, byte for byte",
                    created=stamp, modified=stamp, relationship="Source"),
         Attachment(string=results_json.encode("utf-8"), name=f"{base}.json", description="Results (calcdoc JSON)",
                    created=stamp, modified=stamp, relationship="Data"),
     ]
+    # PDF/A-3b is not claimed: WeasyPrint can write pdf_variant="pdf/a-3b", but no conformance
+    # validator (such as veraPDF) can be installed on our machines, so the claim could not be checked
+    # (LIBRARY-NOTES: one build listed the attachment twice). Plain PDF with embedded files until then.
     fetcher = _Fetcher.make()
     doc = HTML(string=html, base_url=templates_dir().as_uri() + "/", url_fetcher=fetcher)
     # fontTools stamps the clock into every embedded font subset unless SOURCE_DATE_EPOCH is set

@@ -1,0 +1,230 @@
+"""Verifying a calc package: which job file made this PDF, and do its results still follow from it?
+
+A calcdoc PDF carries the job file (byte for byte) and the results JSON as embedded files, and prints
+the job file's SHA-256 on its cover and in its appendix. :func:`verify` reads them back and checks:
+
+1. the attached job file hashes to the SHA-256 printed in the PDF's text and to ``input_sha256`` in
+   the attached results (a mismatch means the PDF or an attachment was altered);
+2. given a job file, whether the report was made from it (same bytes, same hash);
+3. with ``rerun``, that computing the attached job again gives the attached results: byte for byte,
+   or else every number within a relative 1e-9 (when only library versions differ).
+
+The library raises :class:`VerifyError` for input it cannot read (not a PDF, no calcdoc attachments,
+a missing job file); a verification that runs to the end returns :class:`Verification`, whose ``ok``
+is false if anything did not match. Only the command line maps these to exit codes.
+"""
+from __future__ import annotations
+
+import difflib
+import hashlib
+import json
+import math
+import re
+from dataclasses import dataclass, field
+from pathlib import Path
+
+from .errors import CalcdocError
+from .results import RESULTS_SCHEMA
+
+__all__ = ["Finding", "Verification", "VerifyError", "read_package", "verify"]
+
+#: Relative tolerance for numbers in a rerun whose bytes differ (e.g. another CoolProp build).
+RERUN_RTOL = 1e-9
+
+_PRINTED_HASH = re.compile(r"SHA-256:?\s*((?:[0-9a-f]\s*){64})")
+
+
+class VerifyError(CalcdocError):
+    """The report or job file cannot be read as calcdoc input (exit code 2)."""
+
+
+@dataclass(frozen=True)
+class Finding:
+    ok: bool
+    text: str
+
+
+@dataclass
+class Verification:
+    """What :func:`verify` found, in order; ``ok`` only if every finding is."""
+
+    pdf: str
+    job_name: str = ""
+    job_sha256: str = ""
+    findings: list[Finding] = field(default_factory=list)
+
+    @property
+    def ok(self) -> bool:
+        return bool(self.findings) and all(f.ok for f in self.findings)
+
+    def add(self, ok: bool, text: str) -> None:
+        self.findings.append(Finding(ok, text))
+
+    def lines(self) -> list[str]:
+        out = [f"{self.pdf}: attached job file {self.job_name or '(none)'}, sha256 {self.job_sha256 or '(none)'}"]
+        out += [f"  {'ok' if f.ok else 'MISMATCH'}: {f.text}" for f in self.findings]
+        out.append(f"{'verified' if self.ok else 'NOT VERIFIED'}: {self.pdf}")
+        return out
+
+
+@dataclass(frozen=True)
+class Package:
+    """What a calcdoc PDF carries: attached job file and results, and the hashes printed in its text."""
+
+    job_name: str
+    job_data: bytes
+    results_name: str
+    results_text: str
+    results: dict
+    printed_hashes: tuple[str, ...]
+
+
+def read_package(pdf_path: str | Path) -> Package:
+    """The attachments and printed hashes of a calcdoc PDF; raises :class:`VerifyError` if it is not one."""
+    from pypdf import PdfReader
+    from pypdf.errors import PdfReadError
+
+    path = Path(pdf_path)
+    try:
+        data = path.read_bytes()
+    except FileNotFoundError:
+        raise VerifyError(f"{pdf_path}: no such file") from None
+    except IsADirectoryError:
+        raise VerifyError(f"{pdf_path}: this is a folder, not a PDF") from None
+    except OSError as exc:
+        raise VerifyError(f"{pdf_path}: cannot read the file ({exc.strerror})") from None
+    if not data.startswith(b"%PDF-"):
+        raise VerifyError(f"{pdf_path}: not a PDF file")
+    import io
+    import logging
+
+    logging.getLogger("pypdf").setLevel(logging.ERROR)   # a damaged file is reported by us, once
+    try:
+        reader = PdfReader(io.BytesIO(data), strict=False)
+        attached = [(name, blob) for name, blobs in reader.attachments.items() for blob in blobs]
+        text = "\n".join(page.extract_text() or "" for page in reader.pages)
+    except (PdfReadError, ValueError, KeyError, TypeError, AttributeError) as exc:
+        raise VerifyError(f"{pdf_path}: the PDF cannot be read ({type(exc).__name__}: {str(exc)[:120]})") from None
+    results = [(n, b) for n, b in attached if _is_results(b)]
+    others = [(n, b) for n, b in attached if not _is_results(b)]
+    if not attached:
+        raise VerifyError(f"{pdf_path}: the PDF has no attached files; it is not a calcdoc calc package "
+                          "(calcdoc attaches the job file and the results JSON)")
+    if len(results) != 1 or len(others) != 1:
+        names = ", ".join(n for n, _ in attached)
+        raise VerifyError(f"{pdf_path}: expected two attachments (the job file and the calcdoc results JSON), "
+                          f"found {len(attached)}: {names}")
+    rname, rblob = results[0]
+    rtext = rblob.decode("utf-8")
+    printed = tuple(re.sub(r"\s+", "", m.group(1)) for m in _PRINTED_HASH.finditer(text))
+    return Package(others[0][0], others[0][1], rname, rtext, json.loads(rtext), printed)
+
+
+def _is_results(blob: bytes) -> bool:
+    try:
+        obj = json.loads(blob.decode("utf-8"))
+    except (UnicodeDecodeError, ValueError):
+        return False
+    return isinstance(obj, dict) and obj.get("schema") == RESULTS_SCHEMA
+
+
+def verify(pdf_path: str | Path, job_path: str | Path | None = None, rerun: bool = False) -> Verification:
+    """Check a calc package against itself, against a job file, and (``rerun``) against a new run."""
+    pkg = read_package(pdf_path)
+    sha = hashlib.sha256(pkg.job_data).hexdigest()
+    v = Verification(str(pdf_path), pkg.job_name, sha)
+    # 1. the report against itself
+    if not pkg.printed_hashes:
+        v.add(False, "no job-file SHA-256 is printed in the report's text")
+    else:
+        bad = sorted({h for h in pkg.printed_hashes if h != sha})
+        v.add(not bad, f"the attached job file's sha256 {'matches' if not bad else 'differs from'} the hash printed "
+                       f"in the report ({len(pkg.printed_hashes)} place{'s' if len(pkg.printed_hashes) > 1 else ''})"
+                       + (f": printed {', '.join(bad)}" if bad else ""))
+    stated = pkg.results.get("input_sha256")
+    v.add(stated == sha, f"the attached job file's sha256 {'matches' if stated == sha else 'differs from'} "
+                         f"input_sha256 in the attached results ({pkg.results_name})"
+                         + ("" if stated == sha else f": results state {stated}"))
+    # 2. the report against a job file
+    if job_path is not None:
+        try:
+            given = Path(job_path).read_bytes()
+        except FileNotFoundError:
+            raise VerifyError(f"{job_path}: no such file") from None
+        except IsADirectoryError:
+            raise VerifyError(f"{job_path}: this is a folder, not a job file") from None
+        except OSError as exc:
+            raise VerifyError(f"{job_path}: cannot read the file ({exc.strerror})") from None
+        gsha = hashlib.sha256(given).hexdigest()
+        if gsha == sha:
+            v.add(True, f"the report was made from {job_path} (same sha256)")
+        else:
+            v.add(False, f"the report was NOT made from {job_path}: its sha256 is {gsha}"
+                         + _first_difference(pkg.job_data, given, str(job_path)))
+    # 3. the results against a new run of the attached job
+    if rerun:
+        _rerun(v, pkg)
+    return v
+
+
+def _first_difference(attached: bytes, given: bytes, name: str, context: int = 0, most: int = 6) -> str:
+    a = attached.decode("utf-8", "replace").splitlines()
+    b = given.decode("utf-8", "replace").splitlines()
+    diff = [d for d in difflib.unified_diff(a, b, "attached", name, n=context, lineterm="")
+            if not d.startswith(("---", "+++"))]
+    if not diff:
+        return " (the lines are the same; the bytes differ, e.g. line endings or a byte-order mark)"
+    shown = "\n      ".join(diff[:most]) + ("\n      ..." if len(diff) > most else "")
+    return "\n    differences (attached → given):\n      " + shown
+
+
+def _rerun(v: Verification, pkg: Package) -> None:
+    from .engine import run
+    from .jobfile import loads
+    from .results import dumps
+
+    try:
+        text = dumps(run(loads(pkg.job_data, pkg.job_name)))
+    except CalcdocError as exc:
+        v.add(False, f"the attached job file does not compute: {str(exc).splitlines()[0]}")
+        return
+    if text == pkg.results_text:
+        v.add(True, "recomputed results are identical to the attached results, byte for byte")
+        return
+    new = json.loads(text)
+    diffs = _compare(pkg.results, new)
+    if diffs:
+        shown = "\n      ".join(diffs[:8]) + ("\n      ..." if len(diffs) > 8 else "")
+        v.add(False, f"recomputed results differ from the attached results in {len(diffs)} place"
+                     f"{'s' if len(diffs) > 1 else ''}:\n      {shown}")
+    else:
+        versions = ", ".join(f"{k} {pkg.results.get('software', {}).get(k)} → {new.get('software', {}).get(k)}"
+                             for k in sorted(set(pkg.results.get("software", {})) | set(new.get("software", {})))
+                             if pkg.results.get("software", {}).get(k) != new.get("software", {}).get(k))
+        v.add(True, f"recomputed results agree with the attached results within {RERUN_RTOL:g} relative"
+                    + (f" (software versions differ: {versions})" if versions else ""))
+
+
+def _compare(old, new, path: str = "") -> list[str]:
+    """Differences between two results documents, ignoring software versions; numbers within RERUN_RTOL."""
+    if path == "software":
+        return []
+    if isinstance(old, dict) and isinstance(new, dict):
+        out = []
+        for k in list(old) + [k for k in new if k not in old]:
+            sub = f"{path}.{k}" if path else k
+            if k not in old or k not in new:
+                out.append(f"{sub}: {'missing in the new run' if k not in new else 'new in the new run'}")
+            else:
+                out += _compare(old[k], new[k], sub)
+        return out
+    if isinstance(old, list) and isinstance(new, list):
+        if len(old) != len(new):
+            return [f"{path}: {len(old)} items attached, {len(new)} recomputed"]
+        return [d for i, (a, b) in enumerate(zip(old, new)) for d in _compare(a, b, f"{path}[{i}]")]
+    num = (int, float)
+    if isinstance(old, num) and isinstance(new, num) and not isinstance(old, bool) and not isinstance(new, bool):
+        if math.isclose(old, new, rel_tol=RERUN_RTOL, abs_tol=1e-12):
+            return []
+        return [f"{path}: attached {old!r}, recomputed {new!r}"]
+    return [] if old == new else [f"{path}: attached {old!r}, recomputed {new!r}"]
