@@ -13,14 +13,16 @@ if [ -z "$PY" ]; then
 fi
 [ -n "$PY" ] || { echo "setup: Python 3.11 is needed (python3.11 or python3 on PATH)" >&2; exit 1; }
 
-# WeasyPrint renders with Pango; install it from Debian's packages when it is not there.
-if ! "$PY" -c "import ctypes.util, sys; sys.exit(0 if ctypes.util.find_library('pango-1.0') and ctypes.util.find_library('pangoft2-1.0') else 1)"; then
+# WeasyPrint renders with Pango and subsets fonts with HarfBuzz; install them from Debian's packages
+# when they are not there.
+if ! "$PY" -c "import ctypes.util as u, sys; sys.exit(0 if all(u.find_library(n) for n in ('pango-1.0', 'pangoft2-1.0', 'harfbuzz-subset')) else 1)"; then
+  pkgs="libpango-1.0-0 libpangoft2-1.0-0 libharfbuzz0b libharfbuzz-subset0"
   if [ "$(id -u)" = 0 ] && command -v apt-get >/dev/null 2>&1; then
-    echo "setup: installing Pango (Debian packages) for PDF rendering"
+    echo "setup: installing Pango and HarfBuzz (Debian packages) for PDF rendering"
     apt-get update -qq
-    DEBIAN_FRONTEND=noninteractive apt-get install -y -qq libpango-1.0-0 libpangoft2-1.0-0 libharfbuzz0b >/dev/null
+    DEBIAN_FRONTEND=noninteractive apt-get install -y -qq $pkgs >/dev/null
   else
-    echo "setup: Pango is missing; install it with: sudo apt-get install libpango-1.0-0 libpangoft2-1.0-0" >&2
+    echo "setup: PDF rendering needs: sudo apt-get install $pkgs" >&2
     exit 1
   fi
 fi

@@ -23,9 +23,6 @@ from calcdoc.calc import Calc
 from calcdoc.report import render
 from calcdoc.results import Check
 
-# WeasyPrint 70 warns once that it will need HarfBuzz-Subset in future (it subsets fonts with fontTools
-# meanwhile); that is about the machine, not our code.
-pytestmark = pytest.mark.filterwarnings("ignore:HarfBuzz-Subset will be required:DeprecationWarning")
 
 ROOT = Path(__file__).resolve().parents[1]
 DEMO = ROOT / "example_jobs" / "press_gas_spring.yaml"

@@ -18,7 +18,6 @@ import calcdoc
 from calcdoc.cli import main
 from calcdoc.verify import RERUN_RTOL, VerifyError, _compare, read_package, verify
 
-pytestmark = pytest.mark.filterwarnings("ignore:HarfBuzz-Subset will be required:DeprecationWarning")
 
 ROOT = Path(__file__).resolve().parents[1]
 DEMO = ROOT / "example_jobs" / "press_gas_spring.yaml"
