@@ -38,6 +38,8 @@ class Check:
     status: str                    # "pass" or "fail"
     basis: str = ""
     difference: bool = False
+    required_entered: str = ""     # the required margin as entered ("10 %", "15 K"); "" when none
+    limit_entered: str = ""        # the limit as entered
 
 
 @dataclass(frozen=True)
@@ -114,7 +116,7 @@ def to_json(res: Results) -> dict:
         legs.append(item)
     checks = [{"name": c.name, "quantity": c.quantity, "at": c.where, "value": q(c.value.value, c.unit),
                "limit": q(c.limit, c.unit), "type": c.kind, "margin": q(c.margin, c.unit),
-               "margin_percent": c.margin_pct, "required_margin": q(c.required_margin, c.unit),
+               "margin_percent": c.margin_pct if math.isfinite(c.margin_pct) else None, "required_margin": q(c.required_margin, c.unit), "required_margin_entered": c.required_entered,
                "status": c.status, "basis": c.basis} for c in res.checks]
     out = {
         "schema": RESULTS_SCHEMA,
