@@ -44,6 +44,7 @@ class _Plan:
     entered: tuple[str, ...]            # each point as entered
     follow: tuple[tuple, ...]           # (Quantity, at names, where, path)
     span: tuple[int, int]               # character span of the value in the job text
+    cut: tuple[int, int] | None         # span of the whole sweep block (left out of each point's job)
 
 
 def _split_path(text: str) -> list[tuple[str, str | None]] | None:
@@ -105,17 +106,27 @@ def _resolve(job: Job, text: str) -> tuple[Node | None, list, str]:
     return node, route, ""
 
 
-def _span(text: str, route: list) -> tuple[int, int]:
-    """Start and end offsets in the job text of the value at ``route`` (PyYAML marks)."""
+def _spans(text: str, route: list) -> tuple[tuple[int, int], tuple[int, int] | None]:
+    """Offsets in the job text of the value at ``route`` and of the whole sweep block (PyYAML marks).
+
+    Each point's job leaves the sweep block out (it would only be validated again); that is done
+    only where the top level is written in block style, where cutting the block leaves valid YAML.
+    """
     import yaml
 
-    n = yaml.compose(text, Loader=yaml.SafeLoader)
+    root = yaml.compose(text, Loader=yaml.SafeLoader)
+    n = root
     for step in route:
         if isinstance(step, int):
             n = n.value[step]
         else:
             n = next(v for k, v in n.value if k.value == step)
-    return n.start_mark.index, n.end_mark.index
+    cut = None
+    if not root.flow_style:
+        for k, v in root.value:
+            if k.value == "sweep":
+                cut = (k.start_mark.index, v.end_mark.index)
+    return (n.start_mark.index, n.end_mark.index), cut
 
 
 def _scalar_text(node: Node) -> str:
@@ -213,27 +224,32 @@ def _plan(job: Job) -> tuple[_Plan | None, list[Problem]]:
             follow.append((q, tuple(n for n, _ in at), where, path))
     if r.problems or target is None:
         return None, r.problems
-    return _Plan(str(m["input"].value), target, tuple(points), tuple(entered), tuple(follow),
-                 _span(job.text, route)), []
+    span, cut = _spans(job.text, route)
+    return _Plan(str(m["input"].value), target, tuple(points), tuple(entered), tuple(follow), span, cut), []
 
 
 def sweep_problems(job: Job) -> list[Problem]:
     return _plan(job)[1]
 
 
-def point_jobs(job: Job):
-    """Each sweep point as its own validated job: yields (entered text, Job)."""
+def point_jobs(job: Job, plan: _Plan | None = None):
+    """Each sweep point as its own validated job: yields (entered text, source node, index, Job)."""
     from .jobfile import loads
 
-    plan, problems = _plan(job)
-    if problems:
-        raise JobError(problems)
     if plan is None:
-        return
+        plan, problems = _plan(job)
+        if problems:
+            raise JobError(problems)
+        if plan is None:
+            return
     text = job.text
     a, b = plan.span
     for k, ((yaml_text, src), entered) in enumerate(zip(plan.points, plan.entered)):
-        data = (text[:a] + yaml_text + text[b:]).encode("utf-8")
+        pieces = sorted([(a, b, yaml_text)] + ([(*plan.cut, "")] if plan.cut else []), reverse=True)
+        point = text
+        for x, y, new in pieces:
+            point = point[:x] + new + point[y:]
+        data = point.encode("utf-8")
         try:
             pj = loads(data, job.name)
         except JobError as exc:
@@ -254,9 +270,11 @@ def with_sweep(job: Job, results):
     from .engine import compute
     from .results import q as qjson
 
-    plan, _ = _plan(job)
+    plan, problems = _plan(job)
+    if problems:
+        raise JobError(problems)
     points, series, checks = [], {}, {}
-    for entered, src, k, pj in point_jobs(job):
+    for entered, src, k, pj in point_jobs(job, plan):
         try:
             res = compute(pj)
             chk = evaluate(pj, res)
