@@ -63,6 +63,12 @@ class Results:
     def passed(self) -> bool:
         return all(c.status == "pass" for c in self.checks)
 
+    def _repr_html_(self) -> str:
+        """States, legs and checks as tables, for notebooks."""
+        from .report.notebook import results_html
+
+        return results_html(self)
+
     def methods_used(self) -> list[str]:
         """Method ids in first-use order over the whole job."""
         seen: dict[str, None] = {}
