@@ -84,3 +84,14 @@ def test_diff_against_a_git_revision(tmp_path, capsys):
     out = capsys.readouterr().out
     assert "start.pressure: 100 kPa → 120 kPa" in out and "calc.revision: A → B" in out
     assert cli.main(["diff", str(job), "--against", "no-such-rev"]) == 2
+
+
+def test_run_changes_since_writes_the_comparison(tmp_path):
+    import json
+
+    old = write(tmp_path, "old.yaml", ideal_job())
+    new = write(tmp_path, "new.yaml", ideal_job(P1="110 kPa", revision="B"))
+    out = tmp_path / "out"
+    assert cli.main(["run", str(new), "--changes-since", str(old), "--no-pdf", "-o", str(out), "-q"]) == 0
+    ch = json.loads((out / "T-LIM-001_revB.json").read_text())["changes_since"]
+    assert ch["revision"] == "A" and [c["path"] for c in ch["inputs"]] == ["calc.revision", "start.pressure"]
