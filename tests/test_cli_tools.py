@@ -97,3 +97,10 @@ def test_results_show_as_tables_in_a_notebook():
     assert html.count("<table>") == 3
     assert "1→2 Compression" in html and "2→3 Hold" in html and "<td>3</td>" in html
     assert "FAIL" in html and "does not pass" in html
+
+
+def test_library_render_gives_the_report_html():
+    import calcdoc
+
+    html = calcdoc.render(calcdoc.run(loads(ideal_job(), "job.yaml")), pdf=False)
+    assert "T-LIM-001" in html and "<h2>7 Design checks</h2>" in html
