@@ -4,13 +4,13 @@ Library use::
 
     import calcdoc
     job = calcdoc.load("example_jobs/press_gas_spring.yaml")
-    results = calcdoc.run(job)
+    results = calcdoc.run(job)          # shows as tables in a notebook
     calcdoc.write(results, "out")        # results JSON and the PDF calc package
 """
 
 __version__ = "0.1.0"
 
-__all__ = ["CalcdocError", "JobError", "PhysicsError", "__version__", "load", "run", "write"]
+__all__ = ["CalcdocError", "JobError", "PhysicsError", "__version__", "load", "render", "run", "write"]
 
 from .errors import CalcdocError, JobError, PhysicsError
 
@@ -27,6 +27,14 @@ def run(job):
     from .engine import run as _run
 
     return _run(job)
+
+
+def render(results, pdf: bool = True):
+    """The calc package in memory: PDF bytes, or (``pdf=False``) the report's HTML text."""
+    from .report import render_html, render_pdf
+    from .results import dumps
+
+    return render_pdf(results, dumps(results)) if pdf else render_html(results)
 
 
 def write(results, out_dir, pdf: bool = True):

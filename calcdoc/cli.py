@@ -26,12 +26,15 @@ def build_parser() -> argparse.ArgumentParser:
     r = sub.add_parser("run", help="compute a job and write its results JSON and PDF calc package",
                        description="Compute each job file and write OUT/<calc number>_rev<revision>.json and .pdf. "
                                    "A failing run leaves earlier outputs untouched.")
-    r.add_argument("jobs", nargs="+", metavar="JOB.yaml", help="job file(s) to compute")
+    r.add_argument("jobs", nargs="+", metavar="JOB.yaml",
+                   help="job file(s) or folder(s) of job files; several jobs run in parallel over the cores")
     r.add_argument("--out", "-o", default="out", metavar="DIR", help="output folder (default: ./out)")
     r.add_argument("--no-pdf", action="store_true", help="write the results JSON only (no PDF)")
     r.add_argument("--quiet", "-q", action="store_true", help="print nothing but errors")
     r.add_argument("--debug", action="store_true",
                    help="on an internal error, write the traceback to calcdoc-debug.log in the output folder")
+    r.add_argument("--changes-since", metavar="OLD.yaml",
+                   help="add a section 'Changes since revision X' comparing with an older revision of the job")
     c = sub.add_parser("check", help="validate job file(s) without computing or writing anything",
                        description="Read and validate job files; report every problem found (exit 2) or OK (exit 0).")
     c.add_argument("jobs", nargs="+", metavar="JOB.yaml")
@@ -45,6 +48,17 @@ def build_parser() -> argparse.ArgumentParser:
     v.add_argument("report", metavar="REPORT.pdf")
     v.add_argument("job", nargs="?", metavar="JOB.yaml", help="the job file the report is claimed to come from")
     v.add_argument("--rerun", action="store_true", help="recompute the attached job and compare the results")
+    d = sub.add_parser("diff", help="compare two revisions of a job: inputs changed, results and checks that moved",
+                       description="Compute both revisions and list every input that changed and every result and "
+                                   "check that moved, largest relative change first.")
+    d.add_argument("old", metavar="OLD.yaml", help="the older revision (or the job file, with --against)")
+    d.add_argument("new", metavar="NEW.yaml", nargs="?", help="the newer revision")
+    d.add_argument("--against", metavar="REV", help="compare JOB.yaml with itself at a git revision (e.g. HEAD~1)")
+    sub.add_parser("schema", help="print the JSON Schema of the job file (for editors)")
+    n = sub.add_parser("new", help="write a commented starter job file")
+    n.add_argument("--system", choices=("closed", "flow"), default="closed", help="closed (fixed mass) or flow")
+    n.add_argument("path", metavar="FILE.yaml", nargs="?", help="where to write it (default: print it)")
+    n.add_argument("--force", action="store_true", help="overwrite FILE.yaml if it exists")
     return p
 
 
@@ -58,6 +72,10 @@ def main(argv: list[str] | None = None) -> int:
         return _check(args)
     if args.command == "verify":
         return _verify(args)
+    if args.command in ("diff", "schema", "new"):
+        from . import _tools
+
+        return getattr(_tools, args.command)(args)
     return _run(args)
 
 
@@ -96,14 +114,23 @@ def _print_job_error(exc: JobError) -> None:
 
 
 def _run(args) -> int:
-    worst = EXIT_OK
-    for path in args.jobs:
-        code = _run_one(path, args)
-        worst = max(worst, code)
-    return worst
+    from ._batch import expand, run_batch
+
+    jobs, problems = expand(args.jobs)
+    for p in problems:
+        print(f"error: {p}", file=sys.stderr)
+    if not jobs:
+        return EXIT_BAD_INPUT
+    if args.changes_since and len(jobs) != 1:
+        print("error: --changes-since compares one job with its older revision; give one job file", file=sys.stderr)
+        return EXIT_BAD_INPUT
+    if len(jobs) == 1:
+        return max(_run_one(jobs[0], args), EXIT_BAD_INPUT if problems else EXIT_OK)
+    opts = {"out": args.out, "no_pdf": args.no_pdf, "debug": args.debug, "changes_since": None}
+    return max(run_batch(jobs, opts, quiet=args.quiet), EXIT_BAD_INPUT if problems else EXIT_OK)
 
 
-def _run_one(path: str, args) -> int:
+def _run_one(path: str, args, info: dict | None = None) -> int:
     from .jobfile import load
 
     try:
@@ -111,6 +138,11 @@ def _run_one(path: str, args) -> int:
         from .engine import run
 
         results = run(job)
+        if getattr(args, "changes_since", None):
+            from .revision import with_changes
+
+            old = load(args.changes_since)
+            results = with_changes(results, old, run(old))
         from .output import write
 
         written = write(results, args.out, pdf=not args.no_pdf)
@@ -139,6 +171,9 @@ def _run_one(path: str, args) -> int:
         print(f"error: {path}: internal error in calcdoc {__version__}; please report it with the job file."
               f"{where or ' Run again with --debug to write the traceback to a log file.'}", file=sys.stderr)
         return EXIT_INTERNAL
+    if info is not None:
+        info.update(number=results.job.calc.number, revision=results.job.calc.revision, checks=len(results.checks),
+                    failed=sum(1 for c in results.checks if c.status != "pass"), written=[str(p) for p in written])
     if not args.quiet:
         _summary(results, written)
     return EXIT_OK if results.passed else EXIT_CHECK_FAILED

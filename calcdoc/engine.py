@@ -1,6 +1,7 @@
 """The engine: a validated job in, results out. Knows thermodynamics, nothing of YAML or HTML."""
 from __future__ import annotations
 
+from functools import lru_cache
 from importlib import metadata
 
 from . import __version__
@@ -11,7 +12,7 @@ from .jobfile import Job, LegSpec
 from .processes import LegResult, Target, closed_leg
 from .results import Results, StateRecord
 
-__all__ = ["run", "make_gas", "software_versions"]
+__all__ = ["compute", "run", "make_gas", "software_versions"]
 
 #: A state closer than this to its saturation temperature gets a warning [K] (common practice).
 NEAR_SATURATION_K = 5.0
@@ -32,11 +33,18 @@ def make_gas(job: Job) -> tuple[Gas, list[Calc]]:
     spec = job.gas
     try:
         if spec.model == "real":
-            return RealGas(spec.fluid, spec.mixture), []
+            return shared_real_gas(spec.fluid, spec.mixture), []
         return _ideal_gas(job)
     except PhysicsError as exc:
         path = "gas.fluid" if spec.fluid else "gas.mixture"
         raise JobError([job.problem(path, str(exc), _fluid_hint(spec))]) from None
+
+
+@lru_cache(maxsize=8)
+def shared_real_gas(fluid, mixture) -> RealGas:
+    """One real-gas object per fluid and process, reused by every job and sweep point that needs it
+    (its CoolProp state is set afresh by every flash, so reuse does not change results)."""
+    return RealGas(fluid, mixture)
 
 
 def _fluid_hint(spec) -> str:
@@ -162,7 +170,15 @@ def _phase_warnings(gas: Gas, label: str, states: list[State]) -> list[str]:
 
 
 def run(job: Job) -> Results:
-    """Compute a job: its states, legs and warnings."""
+    """Compute a job: its states, legs and warnings, the checks of its limits and its sweep."""
+    from .checks import with_checks
+    from .sweep import with_sweep
+
+    return with_sweep(job, with_checks(job, compute(job)))
+
+
+def compute(job: Job) -> Results:
+    """Compute a job's states, legs and warnings (no design checks, no sweep)."""
     if job.system == "flow":
         from .flow import run_flow
 

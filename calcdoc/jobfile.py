@@ -165,7 +165,18 @@ def loads(data: bytes | str, name: str = "<job>") -> Job:
     job = v.job(tree, data)
     if v.problems:
         raise JobError(sorted(v.problems, key=lambda p: (p.line, p.column)))
+    _check_sections(job)
     return job
+
+
+def _check_sections(job: Job) -> None:
+    """Validate the sections that their own modules read (limits, sweep) and raise every problem."""
+    from .checks import limit_problems
+    from .sweep import sweep_problems
+
+    problems = limit_problems(job) + sweep_problems(job)
+    if problems:
+        raise JobError(sorted(problems, key=lambda p: (p.line, p.column)))
 
 
 # ----------------------------------------------------------------------------------------------

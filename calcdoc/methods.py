@@ -66,6 +66,9 @@ METHODS: dict[str, Method] = {
                               "Q = T·ΔS", ("cengel2019", "moran2014")),
     "firstlaw.closed": Method("First law for a closed system", "Q = ΔU + W", ("cengel2019",)),
     "firstlaw.work": Method("Work from the first law for a closed system", "W = Q − ΔU", ("cengel2019",)),
+    "ratio.leg": Method("Pressure or volume ratio of a leg, end over start (as the pressure ratio and "
+                        "compression ratio of gas cycles)", "r_p = P_end / P_start;  r_v = v_end / v_start",
+                        ("cengel2019",)),
     "prop.difference": Method("Change of an extensive property of a fixed mass", "ΔX = m·(x2 − x1)",
                               ("cengel2019",)),
 }

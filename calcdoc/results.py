@@ -38,6 +38,8 @@ class Check:
     status: str                    # "pass" or "fail"
     basis: str = ""
     difference: bool = False
+    required_entered: str = ""     # the required margin as entered ("10 %", "15 K"); "" when none
+    limit_entered: str = ""        # the limit as entered
 
 
 @dataclass(frozen=True)
@@ -60,6 +62,12 @@ class Results:
     @property
     def passed(self) -> bool:
         return all(c.status == "pass" for c in self.checks)
+
+    def _repr_html_(self) -> str:
+        """States, legs and checks as tables, for notebooks."""
+        from .report.notebook import results_html
+
+        return results_html(self)
 
     def methods_used(self) -> list[str]:
         """Method ids in first-use order over the whole job."""
@@ -114,7 +122,7 @@ def to_json(res: Results) -> dict:
         legs.append(item)
     checks = [{"name": c.name, "quantity": c.quantity, "at": c.where, "value": q(c.value.value, c.unit),
                "limit": q(c.limit, c.unit), "type": c.kind, "margin": q(c.margin, c.unit),
-               "margin_percent": c.margin_pct, "required_margin": q(c.required_margin, c.unit),
+               "margin_percent": c.margin_pct if math.isfinite(c.margin_pct) else None, "required_margin": q(c.required_margin, c.unit), "required_margin_entered": c.required_entered,
                "status": c.status, "basis": c.basis} for c in res.checks]
     out = {
         "schema": RESULTS_SCHEMA,

@@ -152,3 +152,27 @@ def _mark_states(ax, results, system, x, y):
         yv = units.display(getattr(rec.state, y), unit[y], system)[0]
         ax.plot([xv], [yv], "o", ms=3.5, color="#111111", zorder=5)
         ax.annotate(rec.label, (xv, yv), textcoords="offset points", xytext=(4, 4), fontsize=7.5)
+
+
+def sweep_chart(sweep: dict, system: str) -> str:
+    """The followed results of a sweep against the varied input: one small panel per result (at most
+    six), sharing the input axis. Values as the results file holds them, converted for display."""
+    plt = _pyplot()
+    series = sweep["series"][:6]
+    unit = sweep["unit"]
+    xs = [p["value"]["value"] for p in sweep["points"]]
+    x = _conv(xs, unit, system) if unit else xs
+    fig, axes = plt.subplots(max(1, len(series)), 1, figsize=(6.3, 1.7 * max(1, len(series)) + 0.4), sharex=True,
+                             squeeze=False)
+    for k, s in enumerate(series):
+        ax = axes[k][0]
+        pts = [(xv, yv) for xv, yv in zip(x, s["values"]) if yv is not None]
+        y = _conv([p[1] for p in pts], s["unit"], system) if s["unit"] else [p[1] for p in pts]
+        ax.plot([p[0] for p in pts], y, "o-", ms=3, color=PALETTE[k % len(PALETTE)])
+        ax.set_ylabel(units.pretty_unit(units.display_unit(s["unit"], system)) if s["unit"] else "", fontsize=7.5)
+        ax.set_title(s["name"], fontsize=8, loc="left")
+    axes[-1][0].set_xlabel(_label(sweep["input"], unit, system) if unit else sweep["input"])
+    fig.tight_layout()
+    out = _svg(fig)
+    plt.close(fig)
+    return out

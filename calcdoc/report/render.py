@@ -89,6 +89,10 @@ def context(results) -> dict:
         from .charts import diagrams
 
         charts = diagrams(results, system)
+    if results.extra.get("sweep"):
+        from .charts import sweep_chart
+
+        charts["sweep"] = sweep_chart(results.extra["sweep"], system)
     return {
         "r": results,
         "job": job,

@@ -1,0 +1,136 @@
+"""Running many jobs: in parallel over the cores, one process per job at a time, each job isolated
+(its errors are its own), a progress bar on a terminal, and a one-line-per-job summary table."""
+from __future__ import annotations
+
+import io
+import os
+import sys
+from contextlib import redirect_stderr, redirect_stdout
+from dataclasses import dataclass, field
+from pathlib import Path
+
+__all__ = ["Outcome", "expand", "run_batch"]
+
+STATUS = {0: "ok", 1: "CHECK FAILS", 2: "BAD INPUT", 3: "ERROR", 130: "INTERRUPTED"}
+
+
+@dataclass
+class Outcome:
+    path: str
+    code: int
+    stderr: str = ""
+    info: dict = field(default_factory=dict)
+
+
+def expand(paths: list[str]) -> tuple[list[str], list[str]]:
+    """Job files from the command line: files as given, folders as their *.yaml and *.yml files
+    (sorted, not recursive). Returns (job paths, problems)."""
+    jobs, problems = [], []
+    for p in paths:
+        path = Path(p)
+        if path.is_dir():
+            found = sorted(str(f) for f in path.iterdir() if f.suffix in (".yaml", ".yml") and f.is_file())
+            if not found:
+                problems.append(f"{p}: the folder holds no job files (*.yaml, *.yml)")
+            jobs += found
+        else:
+            jobs.append(p)
+    return jobs, problems
+
+
+def _one(path: str, opts: dict) -> Outcome:
+    """Run one job in this process, capturing what it prints (the worker of the pool)."""
+    import argparse
+
+    from .cli import _run_one
+
+    args = argparse.Namespace(**opts, quiet=True)
+    info: dict = {}
+    err, out = io.StringIO(), io.StringIO()
+    try:
+        with redirect_stderr(err), redirect_stdout(out):
+            code = _run_one(path, args, info)
+    except BaseException as exc:  # isolation: nothing a job does may stop the batch
+        return Outcome(path, 3, f"error: {path}: internal error ({type(exc).__name__})\n")
+    return Outcome(path, code, err.getvalue(), info)
+
+
+def _progress(done: int, total: int, stream) -> None:
+    width = 30
+    filled = int(width * done / total)
+    stream.write(f"\r[{'#' * filled}{'.' * (width - filled)}] {done}/{total} jobs")
+    stream.flush()
+
+
+def run_batch(paths: list[str], opts: dict, quiet: bool = False, workers: int | None = None) -> int:
+    """Run the jobs in parallel; print their errors, then a summary table. Returns the worst exit code."""
+    from concurrent.futures import ProcessPoolExecutor, as_completed
+    from concurrent.futures.process import BrokenProcessPool
+
+    total = len(paths)
+    workers = max(1, min(total, workers or os.cpu_count() or 1))
+    bar = sys.stderr.isatty() and not quiet
+    outcomes: dict[int, Outcome] = {}
+    retry: list[int] = []
+    done = 0
+    if bar:
+        _progress(0, total, sys.stderr)
+    try:
+        with ProcessPoolExecutor(max_workers=workers) as pool:
+            futures = {pool.submit(_one, p, opts): k for k, p in enumerate(paths)}
+            for fut in as_completed(futures):
+                k = futures[fut]
+                try:
+                    outcomes[k] = fut.result()
+                except BrokenProcessPool:
+                    retry.append(k)
+                    continue
+                done += 1
+                if bar:
+                    _progress(done, total, sys.stderr)
+        # a job that killed its worker process took the pool down: run the unfinished ones again,
+        # each in a pool of its own, so that only the job that breaks its process is lost
+        for k in sorted(retry):
+            with ProcessPoolExecutor(max_workers=1) as pool:
+                try:
+                    outcomes[k] = pool.submit(_one, paths[k], opts).result()
+                except BrokenProcessPool:
+                    outcomes[k] = Outcome(paths[k], 3, f"error: {paths[k]}: the process computing this job stopped "
+                                                       "unexpectedly; please report it with the job file\n")
+            done += 1
+            if bar:
+                _progress(done, total, sys.stderr)
+    except KeyboardInterrupt:
+        if bar:
+            sys.stderr.write("\n")
+        print("interrupted; jobs in progress were not written", file=sys.stderr)
+        return 130
+    if bar:
+        sys.stderr.write("\n")
+    for k in range(total):
+        if outcomes[k].stderr:
+            sys.stderr.write(outcomes[k].stderr)
+    print(summary_table([outcomes[k] for k in range(total)]), end="")
+    return max(o.code for o in outcomes.values())
+
+
+def summary_table(outcomes: list[Outcome]) -> str:
+    """One line per job: status, file, calc number and revision, checks, the report written."""
+    rows = []
+    for o in outcomes:
+        i = o.info
+        calc = f"{i['number']} rev {i['revision']}" if i.get("number") else ""
+        checks = ""
+        if "checks" in i and i["checks"]:
+            failed = i["failed"]
+            checks = f"{i['checks']} checks pass" if not failed else f"{failed} of {i['checks']} checks FAIL"
+        elif "checks" in i:
+            checks = "no limits"
+        rows.append((STATUS.get(o.code, f"exit {o.code}"), o.path, calc, checks, i.get("written", [""])[-1]))
+    widths = [max(len(r[c]) for r in rows) for c in range(5)]
+    lines = [f"{len(outcomes)} job{'s' if len(outcomes) != 1 else ''}:"]
+    for r in rows:
+        lines.append("  " + "  ".join(r[c].ljust(widths[c]) for c in range(5)).rstrip())
+    bad = sum(1 for o in outcomes if o.code != 0)
+    lines.append(f"{len(outcomes) - bad} ok, {bad} not ok." if bad else "all ok.")
+    return "\n".join(lines) + "\n"

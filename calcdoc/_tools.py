@@ -1,0 +1,64 @@
+"""The small commands: ``diff`` (two revisions), ``schema`` (JSON Schema of the job file) and ``new``
+(a starter job). Called by :mod:`calcdoc.cli`, which alone maps errors to exit codes."""
+from __future__ import annotations
+
+import json
+import sys
+from pathlib import Path
+
+from .errors import CalcdocError, JobError, PhysicsError
+
+EXIT_OK, EXIT_BAD_INPUT = 0, 2
+
+
+def diff(args) -> int:
+    from .cli import _print_job_error
+    from .engine import run
+    from .jobfile import load
+    from .revision import compare, diff_text, load_revision
+
+    if (args.new is None) == (args.against is None):
+        print("error: give OLD.yaml NEW.yaml, or JOB.yaml --against REV", file=sys.stderr)
+        return EXIT_BAD_INPUT
+    try:
+        if args.against:
+            old, new = load_revision(args.old, args.against), load(args.old)
+        else:
+            old, new = load(args.old), load(args.new)
+        d = compare(old, new, run(old), run(new))
+    except JobError as exc:
+        _print_job_error(exc)
+        return EXIT_BAD_INPUT
+    except (PhysicsError, CalcdocError) as exc:
+        print(f"error: {exc}", file=sys.stderr)
+        return EXIT_BAD_INPUT
+    print(diff_text(d, new.units), end="")
+    return EXIT_OK
+
+
+def schema(args) -> int:
+    from .schema import job_schema
+
+    print(json.dumps(job_schema(), indent=2, ensure_ascii=False))
+    return EXIT_OK
+
+
+def new(args) -> int:
+    from .output import write_atomic
+    from .starter import starter
+
+    text = starter(args.system)
+    if not args.path:
+        print(text, end="")
+        return EXIT_OK
+    p = Path(args.path)
+    if p.exists() and not args.force:
+        print(f"error: {p} exists; give another name or --force to overwrite it", file=sys.stderr)
+        return EXIT_BAD_INPUT
+    try:
+        write_atomic(p, text.encode("utf-8"))
+    except OSError as exc:
+        print(f"error: cannot write {p}: {exc.strerror}", file=sys.stderr)
+        return EXIT_BAD_INPUT
+    print(f"wrote {p}; check it with: calcdoc check {p}")
+    return EXIT_OK

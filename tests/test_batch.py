@@ -1,0 +1,42 @@
+"""Batches: several jobs in parallel; a broken job is reported and the others finish."""
+from __future__ import annotations
+
+import json
+
+from _limits_helpers import ideal_job, write
+from calcdoc import cli
+
+
+def test_a_folder_with_one_broken_job_finishes_the_rest(tmp_path, capsys):
+    jobs = tmp_path / "jobs"
+    jobs.mkdir()
+    write(jobs, "a.yaml", ideal_job())
+    write(jobs, "b.yaml", ideal_job(P1="120 kPa", revision="B"))
+    write(jobs, "c_broken.yaml", ideal_job().replace("process: polytropic", "process: politropic"))
+    write(jobs, "notes.txt", "not a job")
+    out = tmp_path / "out"
+    code = cli.main(["run", str(jobs), "--no-pdf", "-o", str(out)])
+    assert code == 2                                   # the worst of 0, 0, 2
+    captured = capsys.readouterr()
+    assert json.loads((out / "T-LIM-001_revA.json").read_text())["passed"] is True
+    assert json.loads((out / "T-LIM-001_revB.json").read_text())["states"][0]["P"]["value"] == 120e3
+    assert "c_broken.yaml:" in captured.err and "did you mean 'polytropic'" in captured.err
+    table = captured.out.splitlines()
+    assert table[0] == "3 jobs:"
+    expected = [("ok", "a.yaml"), ("ok", "b.yaml"), ("BAD INPUT", "c_broken.yaml")]   # in file order
+    for line, (status, name) in zip(table[1:4], expected):
+        assert line.strip().startswith(status) and f"{jobs / name} " in line + " "
+    assert "2 ok, 1 not ok." in captured.out
+
+
+def test_exit_code_is_the_worst_of_the_jobs(tmp_path, capsys):
+    failing = "limits:\n  - {quantity: pressure, max: 200 kPa, basis: common practice}\n"
+    a = write(tmp_path, "a.yaml", ideal_job())
+    b = write(tmp_path, "b.yaml", ideal_job(failing, revision="B"))
+    assert cli.main(["run", str(a), str(b), "--no-pdf", "-o", str(tmp_path / "out")]) == 1
+    assert "1 of 1 checks FAIL" in capsys.readouterr().out
+
+
+def test_an_empty_folder_is_bad_input(tmp_path, capsys):
+    assert cli.main(["run", str(tmp_path), "--no-pdf", "-o", str(tmp_path / "out")]) == 2
+    assert "no job files" in capsys.readouterr().err
