@@ -135,6 +135,8 @@ def _summary(results, written) -> None:
         if "W_by_gas" in qd:
             print(f"  leg {leg.i}→{leg.i + 1} {leg.name} ({leg.process}): W by gas = {num(qd['W_by_gas'].value / 1e3, 5)} kJ, "
                   f"Q to gas = {num(qd['Q_to_gas'].value / 1e3, 5)} kJ")
+        elif "work_in" in qd:
+            print(_flow_leg_line(leg, num))
         else:
             print(f"  leg {leg.i}→{leg.i + 1} {leg.name} ({leg.process})")
     for c in results.checks:
@@ -143,6 +145,20 @@ def _summary(results, written) -> None:
         print(f"  warning: {w}")
     for p in written:
         print(f"  wrote {p}")
+
+
+def _flow_leg_line(leg, num) -> str:
+    """One line of a steady-flow leg: end state, head, efficiencies, power and duty (kJ/kg, kW)."""
+    qd = leg.quantities
+    parts = [f"  leg {leg.i}→{leg.i + 1} {leg.name} ({leg.process}): P2 = {num(leg.end.P / 1e3, 5)} kPa, "
+             f"T2 = {num(leg.end.T - 273.15, 4)} °C"]
+    for key, label, scale, unit in (("head", "Hp", 1e3, "kJ/kg"), ("eta_p", "ηp", 1, ""), ("eta_s", "ηs", 1, ""),
+                                    ("eta_p_schultz", "ηp Schultz", 1, ""), ("power", "P gas", 1e3, "kW"),
+                                    ("shaft_power", "P shaft", 1e3, "kW"), ("duty", "duty", 1e3, "kW"),
+                                    ("dT", "ΔT", 1, "K")):
+        if key in qd and not (key in ("power", "duty") and qd[key].value == 0.0):
+            parts.append(f"{label} = {num(qd[key].value / scale, 5)}{(' ' + unit) if unit else ''}")
+    return ", ".join(parts)
 
 
 def entry() -> None:

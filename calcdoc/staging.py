@@ -71,7 +71,7 @@ def stage_ratio_calc(P_in: float, P_out: float, N: int, fraction: float | None, 
     ins = {"Pout": Term("P_out", P_out, "Pa"), "Pin": Term("P_in", P_in, "Pa"), "N": Term("N", float(N), "")}
     if absolute:
         ins["dP"] = Term("ΔP_ic", absolute, "Pa")
-        return Calc("r_stage", r, "", "r such that r^{N}·{Pin} − {dP}·(r^(N−1) + … + r) = {Pout}", "staging.ratio",
+        return Calc("r_stage", r, "", "r such that r^{N}·{Pin} − {dP}·(r^({N} − 1) + … + r) = {Pout}", "staging.ratio",
                     ins, note="equal stage ratios; each intercooler loses ΔP_ic (solved by bisection)")
     if fraction:
         ins["d"] = Term("δ_ic", fraction, "")
