@@ -66,6 +66,7 @@ class Eos:
         self.mixture = not gas.pure
         self.envelope: list[tuple[float, float]] = []   # (T, P) along the phase envelope
         self.envelope_note = ""
+        self._recent: dict[tuple[float, float], Point] = {}   # states already flashed (a leg's start)
         if self.mixture:
             try:
                 self.AS.build_phase_envelope("")
@@ -108,6 +109,16 @@ class Eos:
         """The state at (P, T) with cp and (∂v/∂T)_P."""
         if not (P > 0 and T > 0 and math.isfinite(P) and math.isfinite(T)):
             raise PhysicsError(f"the state P = {P:.6g} Pa, T = {T:.6g} K is not physical")
+        key = (P, T)
+        if key in self._recent:
+            return self._recent[key]
+        pt = self._pt(P, T)
+        if len(self._recent) > 64:
+            self._recent.clear()
+        self._recent[key] = pt
+        return pt
+
+    def _pt(self, P: float, T: float) -> Point:
         gas = self.gas
         if not (gas.Tmin * 0.999 <= T <= gas.Tmax) or P > gas.pmax:
             raise PhysicsError(f"the state P = {P / 1e3:.6g} kPa, T = {T:.6g} K is outside the range of the equation "
