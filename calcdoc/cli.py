@@ -186,9 +186,9 @@ def _summary(results, written) -> None:
     system = results.job.units
     t = results.job.calc
 
-    def show(value, unit, sig=5):
-        v, u = display(value, unit, system)
-        return f"{_num(v, sig)} {u}".replace("\u2009", " ")
+    def show(value, unit, sig=5, difference=False):
+        v, u = display(value, unit, system, difference=difference)
+        return f"{_num(v, sig)} {u}".replace("\u2009", " ").strip()
 
     print(f"{t.number} rev {t.revision}: {t.title}")
     print(f"  gas: {results.gas.describe()}")
@@ -201,6 +201,8 @@ def _summary(results, written) -> None:
         if "W_by_gas" in qd:
             print(f"  leg {leg.i}→{leg.i + 1} {leg.name} ({leg.process}): W by gas = {show(qd['W_by_gas'].value, 'J')}, "
                   f"Q to gas = {show(qd['Q_to_gas'].value, 'J')}")
+        elif "work_in" in qd:
+            print(_flow_leg_line(leg, show))
         else:
             print(f"  leg {leg.i}→{leg.i + 1} {leg.name} ({leg.process})")
     for c in results.checks:
@@ -209,6 +211,19 @@ def _summary(results, written) -> None:
         print(f"  warning: {w}")
     for p in written:
         print(f"  wrote {p}")
+
+
+def _flow_leg_line(leg, show) -> str:
+    """One line of a steady-flow leg: end state, head, efficiencies, power and duty, in the job's units."""
+    qd = leg.quantities
+    parts = [f"  leg {leg.i}→{leg.i + 1} {leg.name} ({leg.process}): P2 = {show(leg.end.P, 'Pa')}, "
+             f"T2 = {show(leg.end.T, 'K')}"]
+    for key, label in (("head", "Hp"), ("eta_p", "ηp"), ("eta_s", "ηs"), ("eta_p_schultz", "ηp Schultz"),
+                       ("power", "P gas"), ("shaft_power", "P shaft"), ("duty", "duty"), ("dT", "ΔT")):
+        if key in qd and not (key in ("power", "duty") and qd[key].value == 0.0):
+            c = qd[key]
+            parts.append(f"{label} = {show(c.value, c.unit, difference=(key == 'dT'))}")
+    return ", ".join(parts)
 
 
 def entry() -> None:

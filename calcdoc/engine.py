@@ -33,7 +33,9 @@ def make_gas(job: Job) -> tuple[Gas, list[Calc]]:
     spec = job.gas
     try:
         if spec.model == "real":
-            return shared_real_gas(spec.fluid, spec.mixture), []
+            gas = shared_real_gas(spec.fluid, spec.mixture)
+            gas.flashes = 0          # the flash count is per run
+            return gas, []
         return _ideal_gas(job)
     except PhysicsError as exc:
         path = "gas.fluid" if spec.fluid else "gas.mixture"

@@ -159,8 +159,10 @@ class RealGas(Gas):
         self.Tmax = self.AS.Tmax()
         self.pmax = self.AS.pmax()
         self.pure = not mixture
-        self.Tc = self.AS.T_critical()
-        self.Pc = self.AS.p_critical()
+        # mixtures: CoolProp's critical-point search takes seconds and may find several points; the
+        # flow engine uses the phase envelope instead
+        self.Tc = self.AS.T_critical() if self.pure else math.nan
+        self.Pc = self.AS.p_critical() if self.pure else math.nan
         self.flashes = 0
 
     def describe(self) -> str:

@@ -34,6 +34,22 @@ REFERENCES: dict[str, str] = {
     "bell2014": "Bell, I. H., Wronski, J., Quoilin, S., Lemort, V. Pure and Pseudo-pure Fluid Thermophysical "
                 "Property Evaluation and the Open-Source Thermophysical Property Library CoolProp. "
                 "Ind. Eng. Chem. Res. 53(6), 2498–2508 (2014). doi:10.1021/ie4033999.",
+    "schultz1962": "Schultz, J. M. The Polytropic Analysis of Centrifugal Compressors. Journal of Engineering "
+                   "for Power (Trans. ASME, Series A) 84(1), 69–82 (1962). doi:10.1115/1.3673381. "
+                   "(Cited from memory.)",
+    "asmeptc10": "ASME PTC 10-1997, Performance Test Code on Compressors and Exhausters. The American Society of "
+                 "Mechanical Engineers, New York, 1997. Polytropic analysis of real gases with the Schultz "
+                 "factor (sec. 5 and nonmandatory appendices). (Cited from memory; check the edition that "
+                 "applies.)",
+    "dixon2014": "Dixon, S. L., Hall, C. A. Fluid Mechanics and Thermodynamics of Turbomachinery, 7th ed. "
+                 "Butterworth-Heinemann, Oxford, 2014. Ch. 2, compressor and turbine efficiencies, small-stage "
+                 "(polytropic) efficiency. (Cited from memory.)",
+    "dormand1980": "Dormand, J. R., Prince, P. J. A family of embedded Runge–Kutta formulae. Journal of "
+                   "Computational and Applied Mathematics 6(1), 19–26 (1980). doi:10.1016/0771-050X(80)90013-3. "
+                   "(Cited from memory.)",
+    "hairer1993": "Hairer, E., Nørsett, S. P., Wanner, G. Solving Ordinary Differential Equations I: Nonstiff "
+                  "Problems, 2nd ed. Springer, Berlin, 1993. Sec. II.4 (step-size control, starting step) and "
+                  "II.5 (embedded Runge–Kutta pairs). (Cited from memory.)",
 }
 
 METHODS: dict[str, Method] = {
@@ -71,6 +87,57 @@ METHODS: dict[str, Method] = {
                         ("cengel2019",)),
     "prop.difference": Method("Change of an extensive property of a fixed mass", "ΔX = m·(x2 − x1)",
                               ("cengel2019",)),
+    # -- steady flow (calcdoc.flow) ---------------------------------------------------------------
+    "flow.ratio": Method("Pressure ratio of a stage", "r = P2/P1", ("cengel2019",)),
+    "flow.mass_flow": Method("Mass flow from a molar or volume flow", "ṁ = ṅ·M;  ṁ = V̇/v", ("cengel2019",)),
+    "flow.firstlaw_adiabatic": Method("First law for an adiabatic steady-flow machine (kinetic and potential "
+                                      "energy neglected)", "w_in = h2 − h1", ("cengel2019", "dixon2014")),
+    "flow.firstlaw_heat": Method("First law for steady flow", "q_in + w_in = h2 − h1", ("cengel2019",)),
+    "flow.head_isentropic": Method("Isentropic head: enthalpy rise to the isentropic end state at the end "
+                                   "pressure", "H_s = h(P2, s1) − h1", ("dixon2014", "asmeptc10")),
+    "flow.head_polytropic": Method("Polytropic head: ∫v·dP along the path of constant polytropic efficiency, "
+                                   "where v·dP = η_p·dh (compressor) or dh = η_p·v·dP (expander)",
+                                   "H_p = η_p·(h2 − h1) (compressor);  H_p = (h2 − h1)/η_p (expander)",
+                                   ("schultz1962", "dixon2014")),
+    "flow.eta_s": Method("Isentropic efficiency", "η_s = (h2s − h1)/(h2 − h1) (compressor); "
+                         "η_s = (h2 − h1)/(h2s − h1) (expander)", ("cengel2019", "dixon2014")),
+    "flow.direct": Method("Real-gas path of constant polytropic efficiency integrated with the equation of "
+                          "state: dT/d(ln P) = P·[v·(e − 1) + T·(∂v/∂T)_P]/c_p with e = 1/η_p (compressor) or "
+                          "η_p (expander), Dormand–Prince 5(4) pair with step control to 1e-6 relative in head",
+                          "v·dP = η_p·dh", ("schultz1962", "dixon2014", "dormand1980", "hairer1993", "bell2014")),
+    "flow.n_ends": Method("Polytropic exponent from the end states of a stage", "n = ln(P2/P1)/ln(v1/v2)",
+                          ("schultz1962", "moran2014")),
+    "flow.power": Method("Power of the flow from a per-unit-mass quantity", "P = ṁ·w;  Q̇ = ṁ·q", ("cengel2019",)),
+    "flow.shaft_power": Method("Shaft power from gas power and mechanical efficiency",
+                               "P_shaft = P_gas/η_m (compressor);  P_shaft = P_gas·η_m (expander)",
+                               ("dixon2014",)),
+    "flow.total": Method("Total over the legs of the train", "ΣX = X_1 + X_2 + …", ("cengel2019",)),
+    "flow.pressure_drop": Method("Outlet pressure of a heat exchanger from its pressure drop",
+                                 "P2 = P1·(1 − δ)  or  P2 = P1 − ΔP", ("cengel2019",)),
+    "flow.throttle": Method("Throttling: adiabatic, no work, enthalpy conserved", "h2 = h1", ("cengel2019",)),
+    "flow.work_polytropic": Method("Reversible steady-flow work along P·vⁿ = const",
+                                   "w_in = ∫v·dP = n/(n − 1)·(P2·v2 − P1·v1);  P1·v1·ln(P2/P1) at n = 1",
+                                   ("cengel2019",)),
+    "flow.work_isentropic_ideal": Method("Reversible adiabatic steady-flow work of an ideal gas",
+                                         "w_in = k/(k − 1)·P1·v1·((P2/P1)^((k−1)/k) − 1)", ("cengel2019",)),
+    "flow.work_isothermal_ideal": Method("Reversible isothermal steady-flow work of an ideal gas",
+                                         "w_in = R·T·ln(P2/P1)", ("cengel2019",)),
+    "ideal.isentropic_T": Method("Isentropic end temperature of an ideal gas", "T2s = T1·(P2/P1)^((k−1)/k)",
+                                 ("cengel2019",)),
+    "ideal.polytropic_T": Method("End temperature of an ideal-gas stage at constant polytropic efficiency",
+                                 "T2/T1 = (P2/P1)^((k−1)/(k·η_p)) (compressor);  (P2/P1)^(η_p·(k−1)/k) (expander)",
+                                 ("dixon2014",)),
+    "ideal.polytropic_eta": Method("Polytropic efficiency of an ideal-gas stage from its end temperatures",
+                                   "η_p = ((k−1)/k)·ln(P2/P1)/ln(T2/T1) (compressor)", ("dixon2014",)),
+    "schultz.ns": Method("Isentropic volume exponent between the inlet and the isentropic end state (Schultz)",
+                         "n_s = ln(P2/P1)/ln(v1/v2s)", ("schultz1962", "asmeptc10")),
+    "schultz.f": Method("Schultz polytropic head factor", "f = (h2s − h1)/[n_s/(n_s − 1)·(P2·v2s − P1·v1)]",
+                        ("schultz1962", "asmeptc10")),
+    "schultz.head": Method("Polytropic head and efficiency by the Schultz method, as used in ASME PTC 10",
+                           "H_p = f·n/(n − 1)·(P2·v2 − P1·v1);  η_p = H_p/(h2 − h1)", ("schultz1962", "asmeptc10")),
+    "staging.ratio": Method("Equal stage pressure ratios with intercooler pressure drops",
+                            "r^N·P_in·(1 − δ)^(N−1) = P_out  (or with absolute drops, solved for r)",
+                            ("cengel2019",)),
 }
 
 _BIBTEX_FILE = "CoolPropBibTeXLibrary.bib"

@@ -36,6 +36,13 @@ ENGINE_ASSUMPTIONS = {
         "Kinetic and potential energy of the gas are neglected.",
         "The gas is uniform in pressure and temperature at every instant.",
     ),
+    "flow": (
+        "Steady flow: the mass flow is the same through every leg (no leakage, no side streams).",
+        "Compressor and expander stages are adiabatic; coolers and heaters do no work.",
+        "Kinetic and potential energy of the gas are neglected (total and static states are the same).",
+        "A real-gas stage follows the path of constant polytropic efficiency, integrated with the equation of "
+        "state; the Schultz (ASME PTC 10) result from the same end states is shown beside it.",
+    ),
 }
 
 

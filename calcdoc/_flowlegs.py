@@ -1,0 +1,428 @@
+"""Steady-flow legs: compressor and expander stages, coolers and heaters, throttles, and the
+reversible polytropic, isentropic and isothermal flow processes.
+
+Each function takes the flow context, the leg's start state and its end target, and returns a
+:class:`calcdoc.processes.LegResult` whose quantities follow the results contract: per unit mass
+``work_in``, ``head`` (polytropic head ∫v·dP), ``head_isentropic`` [J/kg]; ``eta_p``, ``eta_s``, ``n``;
+for the flow ``duty``, ``power``, ``shaft_power`` [W]. Sign convention: shaft work and heat INTO
+the gas are positive (an expander has negative work_in and power; a cooler negative duty).
+"""
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+from ._flowpath import Eos, Point, polytropic_path, solve_T
+from .calc import Calc, Term
+from .errors import PhysicsError
+from .gas import Gas, State
+from .processes import LegResult
+
+__all__ = ["Ctx", "machine", "heat_exchanger", "throttle", "reversible"]
+
+PATH_POINTS = 8
+
+
+@dataclass
+class Ctx:
+    """What every leg needs: the gas, the counted real-gas flashes (None for an ideal gas), the mass flow."""
+
+    gas: Gas
+    eos: Eos | None
+    m_dot: float
+
+    @property
+    def ideal(self) -> bool:
+        return self.eos is None
+
+    def point(self, P: float, T: float) -> Point | State:
+        return self.eos.pt(P, T) if self.eos is not None else self.gas.state_PT(P, T)
+
+    def state(self, P: float, T: float) -> State:
+        p = self.point(P, T)
+        return p.state if isinstance(p, Point) else p
+
+
+def _t(sym: str, i: int, value: float, unit: str) -> Term:
+    return Term(f"{sym}_{i}", value, unit)
+
+
+def _h_calcs(gas: Gas, pairs: list[tuple[str, State]]) -> list[Calc]:
+    return [Calc(f"h_{lab}", s.h, "J/kg", f"h(P_{lab}, T_{lab})", gas.eos_method) for lab, s in pairs]
+
+
+def _n_calc(i: int, s1: State, s2: State) -> Calc | None:
+    j = i + 1
+    if s1.v == s2.v or s1.P == s2.P:
+        return None
+    n = math.log(s2.P / s1.P) / math.log(s1.v / s2.v)
+    return Calc("n", n, "", "ln({P2}/{P1}) / ln({v1}/{v2})", "flow.n_ends",
+                {"P2": _t("P", j, s2.P, "Pa"), "P1": _t("P", i, s1.P, "Pa"),
+                 "v1": _t("v", i, s1.v, "m**3/kg"), "v2": _t("v", j, s2.v, "m**3/kg")})
+
+
+def _flow_terms(m_dot: float, w: float, sym: str = "w_in") -> dict[str, Term]:
+    return {"m": Term("ṁ", m_dot, "kg/s"), "w": Term(sym, w, "J/kg")}
+
+
+def _path_P(P1: float, P2: float, n: int = PATH_POINTS) -> list[float]:
+    return [P1 * (P2 / P1) ** (k / n) for k in range(1, n)]
+
+
+# -- compressor and expander ------------------------------------------------------------------------
+def machine(ctx: Ctx, name: str, process: str, i: int, s1: State, P2: float, eta_p: float | None,
+            eta_s: float | None, eta_m: float | None, T2_measured: float | None) -> LegResult:
+    """A compressor or expander stage, adiabatic, from s1 to the pressure P2 with a polytropic or an
+    isentropic efficiency, or to a measured end temperature (both efficiencies derived)."""
+    j = i + 1
+    comp = process == "compressor"
+    r = P2 / s1.P
+    calcs = [Calc("r", r, "", "{P2}/{P1}", "flow.ratio", {"P2": _t("P", j, P2, "Pa"), "P1": _t("P", i, s1.P, "Pa")})]
+    facts: list[str] = []
+    fn = _machine_ideal if ctx.ideal else _machine_real
+    s2, s2s, eta_p, eta_s, path, more = fn(ctx, comp, i, s1, P2, r, eta_p, eta_s, T2_measured, facts)
+    calcs += more
+    gas = ctx.gas
+    calcs += _h_calcs(gas, [(str(i), s1), (str(j), s2), (f"{j}s", s2s)])
+    w = s2.h - s1.h
+    Hs = s2s.h - s1.h
+    W = Calc("w_in", w, "J/kg", "{h2} − {h1}", "flow.firstlaw_adiabatic",
+             {"h2": _t("h", j, s2.h, "J/kg"), "h1": _t("h", i, s1.h, "J/kg")})
+    HS = Calc("H_s", Hs, "J/kg", "{h2s} − {h1}", "flow.head_isentropic",
+              {"h2s": Term(f"h_{j}s", s2s.h, "J/kg"), "h1": _t("h", i, s1.h, "J/kg")})
+    Hp = eta_p.value * w if comp else w / eta_p.value
+    HP = Calc("H_p", Hp, "J/kg", "{eta}·{w}" if comp else "{w}/{eta}", "flow.head_polytropic",
+              {"eta": Term("η_p", eta_p.value, ""), "w": Term("w_in", w, "J/kg")},
+              note="polytropic head ∫v·dP along the path of constant η_p")
+    calcs += [W, HS, HP]
+    n = _n_calc(i, s1, s2)
+    if n is not None:
+        calcs.append(n)
+    q = {"work_in": W, "head": HP, "head_isentropic": HS, "eta_p": eta_p, "eta_s": eta_s}
+    if n is not None:
+        q["n"] = n
+    if not ctx.ideal and n is not None:
+        q.update(_schultz(i, s1, s2, s2s, Hs, w, eta_p.value, comp, n.value, calcs, facts))
+    _power(ctx, q, calcs, w, comp, eta_m)
+    return LegResult(name, process, i, s1, s2, q, tuple(calcs), tuple(path), (), tuple(facts))
+
+
+def _power(ctx: Ctx, q: dict, calcs: list[Calc], w: float, comp: bool, eta_m: float | None) -> None:
+    P = Calc("P_gas", ctx.m_dot * w, "W", "{m}·{w}", "flow.power", _flow_terms(ctx.m_dot, w))
+    D = Calc("Q̇", 0.0, "W", "0", "flow.firstlaw_adiabatic", note="adiabatic machine: no heat exchanged")
+    calcs += [P, D]
+    q["power"], q["duty"] = P, D
+    if eta_m is not None:
+        ins = {"P": Term("P_gas", P.value, "W"), "eta": Term("η_m", eta_m, "")}
+        S = Calc("P_shaft", P.value / eta_m if comp else P.value * eta_m, "W", "{P}/{eta}" if comp else "{P}·{eta}",
+                 "flow.shaft_power", ins, note="driver delivers" if comp else "shaft receives")
+        calcs.append(S)
+        q["shaft_power"] = S
+
+
+def _machine_ideal(ctx, comp, i, s1, P2, r, eta_p, eta_s, T2m, facts):
+    gas = ctx.gas
+    j = i + 1
+    k, cp = gas.k, gas.cp
+    T1 = s1.T
+    kt, rt, T1t = Term("k", k, ""), Term("r", r, ""), _t("T", i, T1, "K")
+    calcs = []
+    T2s = T1 * r ** ((k - 1) / k)
+    calcs.append(Calc(f"T_{j}s", T2s, "K", "{T1}·{r}^(({k} − 1)/{k})", "ideal.isentropic_T", {"T1": T1t, "r": rt, "k": kt}))
+    eps = None
+    if eta_p is not None:
+        et = Term("η_p", eta_p, "")
+        T2 = T1 * r ** ((k - 1) / (k * eta_p)) if comp else T1 * r ** (eta_p * (k - 1) / k)
+        calcs.append(Calc(f"T_{j}", T2, "K", "{T1}·{r}^(({k} − 1)/({k}·{eta}))" if comp else
+                          "{T1}·{r}^({eta}·({k} − 1)/{k})", "ideal.polytropic_T", {"T1": T1t, "r": rt, "k": kt, "eta": et}))
+    elif eta_s is not None:
+        et = Term("η_s", eta_s, "")
+        T2 = T1 + (T2s - T1) / eta_s if comp else T1 + eta_s * (T2s - T1)
+        calcs.append(Calc(f"T_{j}", T2, "K", "{T1} + ({T2s} − {T1})/{eta}" if comp else "{T1} + {eta}·({T2s} − {T1})",
+                          "flow.eta_s", {"T1": T1t, "T2s": Term(f"T_{j}s", T2s, "K"), "eta": et}))
+    else:
+        T2 = T2m
+        calcs.append(Calc(f"T_{j}", T2, "K", "{T2}", "input", {"T2": _t("T", j, T2, "K")}, note="measured"))
+    s2, s2s = gas.state_PT(P2, T2), gas.state_PT(P2, T2s)
+    if eta_s is None:
+        es = (T2s - T1) / (T2 - T1) if comp else (T2 - T1) / (T2s - T1)
+        eps = Calc("η_s", es, "", "({T2s} − {T1})/({T2} − {T1})" if comp else "({T2} − {T1})/({T2s} − {T1})",
+                   "flow.eta_s", {"T2s": Term(f"T_{j}s", T2s, "K"), "T1": T1t, "T2": _t("T", j, T2, "K")})
+    else:
+        eps = Calc("η_s", eta_s, "", "{e}", "input", {"e": Term("η_s", eta_s, "")})
+    if eta_p is None:
+        a = (k - 1) / k * math.log(r)
+        ep = a / math.log(T2 / T1) if comp else math.log(T2 / T1) / a
+        ins = {"k": kt, "r": rt, "T2": _t("T", j, T2, "K"), "T1": T1t}
+        epc = Calc("η_p", ep, "", "(({k} − 1)/{k})·ln {r} / ln({T2}/{T1})" if comp else
+                   "ln({T2}/{T1}) / ((({k} − 1)/{k})·ln {r})", "ideal.polytropic_eta", ins)
+        calcs.append(epc)
+    else:
+        epc = Calc("η_p", eta_p, "", "{e}", "input", {"e": Term("η_p", eta_p, "")})
+    calcs.append(eps)
+    facts.append("Ideal gas with constant specific heats: closed-form end temperatures.")
+    path = [s1] + [gas.state_PT(P, T1 * (P / s1.P) ** (math.log(T2 / T1) / math.log(r))) for P in _path_P(s1.P, P2)] + [s2]
+    return s2, s2s, epc, eps, path, calcs
+
+
+def _isentropic_end(ctx: Ctx, s1: State, P2: float, T_guess: float) -> Point:
+    return solve_T(ctx.eos, P2, T_guess, "s", s1.s, f"the start entropy s = {s1.s:.6g} J/(kg K)")
+
+
+def _machine_real(ctx, comp, i, s1, P2, r, eta_p, eta_s, T2m, facts):
+    eos = ctx.eos
+    gas = ctx.gas
+    j = i + 1
+    p1 = eos.pt(s1.P, s1.T)
+    calcs = []
+    f0 = gas.flashes
+    R = 8.314462618 / gas.M
+    if eta_p is not None:
+        p2, path, steps = polytropic_path(eos, p1, P2, eta_p)
+        T2 = p2.state.T
+        calcs.append(Calc(f"T_{j}", T2, "K", "T at {P2} on the path v·dP = {eta}·dh" if comp else
+                          "T at {P2} on the path dh = {eta}·v·dP", "flow.direct",
+                          {"P2": _t("P", j, P2, "Pa"), "eta": Term("η_p", eta_p, "")},
+                          note=f"integrated in ln P with the equation of state: {steps} Runge–Kutta steps"))
+        guess = s1.T * (T2 / s1.T) ** (eta_p if comp else 1.0 / eta_p)
+        p2s = _isentropic_end(ctx, s1, P2, guess)
+        eps = None
+    else:
+        p2s = _isentropic_end(ctx, s1, P2, s1.T * r ** (R / p1.cp))
+        if eta_s is not None:
+            Hs = p2s.state.h - s1.h
+            h2 = s1.h + (Hs / eta_s if comp else eta_s * Hs)
+            calcs.append(Calc(f"h_{j}", h2, "J/kg", "{h1} + ({h2s} − {h1})/{eta}" if comp else
+                              "{h1} + {eta}·({h2s} − {h1})", "flow.eta_s",
+                              {"h1": _t("h", i, s1.h, "J/kg"), "h2s": Term(f"h_{j}s", p2s.state.h, "J/kg"),
+                               "eta": Term("η_s", eta_s, "")}))
+            T_guess = s1.T + (p2s.state.T - s1.T) / (eta_s if comp else 1 / eta_s)
+            p2 = solve_T(eos, P2, T_guess, "h", h2, f"h = {h2:.6g} J/kg")
+            calcs.append(Calc(f"T_{j}", p2.state.T, "K", f"T(P_{j}, h_{j})", "eos.real"))
+        else:
+            p2 = eos.pt(P2, T2m)
+            calcs.append(Calc(f"T_{j}", T2m, "K", "{T2}", "input", {"T2": _t("T", j, T2m, "K")}, note="measured"))
+        eta_p, path, steps = _eta_p_from_end(ctx, comp, p1, p2, p2s)
+        calcs.append(Calc("η_p", eta_p, "", "η_p such that the path v·dP = η_p·dh from state {i} reaches {T2} at {P2}"
+                          if comp else "η_p such that the path dh = η_p·v·dP from state {i} reaches {T2} at {P2}",
+                          "flow.direct", {"i": Term("i", float(i), ""), "T2": _t("T", j, p2.state.T, "K"),
+                                          "P2": _t("P", j, P2, "Pa")},
+                          note=f"secant iteration on η_p, each trial integrated in ln P ({steps} steps in the last)"))
+    s2, s2s = p2.state, p2s.state
+    calcs.append(Calc(f"T_{j}s", s2s.T, "K", f"T(P_{j}, s = s_{i})", "eos.real", note="isentropic end state"))
+    if eta_s is None:
+        w, Hs = s2.h - s1.h, s2s.h - s1.h
+        es = Hs / w if comp else w / Hs
+        eps = Calc("η_s", es, "", "({h2s} − {h1})/({h2} − {h1})" if comp else "({h2} − {h1})/({h2s} − {h1})",
+                   "flow.eta_s", {"h2s": Term(f"h_{j}s", s2s.h, "J/kg"), "h1": _t("h", i, s1.h, "J/kg"),
+                                  "h2": _t("h", j, s2.h, "J/kg")})
+    else:
+        eps = Calc("η_s", eta_s, "", "{e}", "input", {"e": Term("η_s", eta_s, "")})
+    calcs.append(eps)
+    epc = next((c for c in calcs if c.symbol == "η_p"), None) or Calc("η_p", eta_p, "", "{e}", "input",
+                                                                       {"e": Term("η_p", eta_p, "")})
+    facts.append(f"Real gas: the path of constant polytropic efficiency is integrated with the equation of state "
+                 f"({gas.flashes - f0} equation-of-state evaluations for this stage).")
+    return s2, s2s, epc, eps, path, calcs
+
+
+def _eta_p_from_end(ctx: Ctx, comp: bool, p1: Point, p2: Point, p2s: Point) -> tuple[float, list[State], int]:
+    """The polytropic efficiency whose path reaches the given end state: secant on η_p from the
+    Schultz estimate, to 1e-6 K in end temperature."""
+    s1, s2, s2s = p1.state, p2.state, p2s.state
+    lr = math.log(s2.P / s1.P)
+    try:
+        ns = lr / math.log(s1.v / s2s.v)
+        n = lr / math.log(s1.v / s2.v)
+        f = (s2s.h - s1.h) / (ns / (ns - 1) * (s2.P * s2s.v - s1.P * s1.v))
+        Hp = f * n / (n - 1) * (s2.P * s2.v - s1.P * s1.v)
+        e0 = Hp / (s2.h - s1.h) if comp else (s2.h - s1.h) / Hp
+    except (ValueError, ZeroDivisionError):
+        e0 = 0.8
+    if not 0.05 < e0 <= 1.0:
+        e0 = 0.8
+
+    def g(e: float) -> tuple[float, list[State], int]:
+        end, path, steps = polytropic_path(ctx.eos, p1, s2.P, e)
+        return end.state.T - s2.T, path, steps
+
+    a, (ga, path, steps) = e0, g(e0)
+    b = e0 * (1.002 if e0 < 0.99 else 0.998)
+    gb, path_b, steps_b = g(b)
+    for _ in range(30):
+        if abs(gb) < 1e-6 or gb == ga:
+            break
+        c = b - gb * (b - a) / (gb - ga)
+        c = min(1.0, max(0.02, c))
+        a, ga = b, gb
+        b = c
+        gb, path_b, steps_b = g(b)
+    else:
+        raise PhysicsError("the polytropic efficiency of the measured end state did not converge")
+    if b > 1.0 + 1e-9 or abs(gb) > 1e-3:
+        raise PhysicsError(f"no polytropic efficiency up to 1 reaches the end state (T = {s2.T:.6g} K): the end "
+                           "temperature is at or below the isentropic one")
+    return b, path_b, steps_b
+
+
+def _schultz(i, s1, s2, s2s, Hs, w, eta_p, comp, n, calcs, facts) -> dict[str, Calc]:
+    """The Schultz (1962) polytropic head from the same end states, as ASME PTC 10 uses it."""
+    j = i + 1
+    lr = math.log(s2.P / s1.P)
+    ns = lr / math.log(s1.v / s2s.v)
+    NS = Calc("n_s", ns, "", "ln({P2}/{P1}) / ln({v1}/{v2s})", "schultz.ns",
+              {"P2": _t("P", j, s2.P, "Pa"), "P1": _t("P", i, s1.P, "Pa"), "v1": _t("v", i, s1.v, "m**3/kg"),
+               "v2s": Term(f"v_{j}s", s2s.v, "m**3/kg")})
+    f = Hs / (ns / (ns - 1) * (s2.P * s2s.v - s1.P * s1.v))
+    F = Calc("f", f, "", "{Hs} / [{ns}/({ns} − 1)·({P2}·{v2s} − {P1}·{v1})]", "schultz.f",
+             {"Hs": Term("H_s", Hs, "J/kg"), "ns": Term("n_s", ns, ""), "P2": _t("P", j, s2.P, "Pa"),
+              "v2s": Term(f"v_{j}s", s2s.v, "m**3/kg"), "P1": _t("P", i, s1.P, "Pa"), "v1": _t("v", i, s1.v, "m**3/kg")})
+    Hp = f * n / (n - 1) * (s2.P * s2.v - s1.P * s1.v)
+    HP = Calc("H_p,S", Hp, "J/kg", "{f}·{n}/({n} − 1)·({P2}·{v2} − {P1}·{v1})", "schultz.head",
+              {"f": Term("f", f, ""), "n": Term("n", n, ""), "P2": _t("P", j, s2.P, "Pa"),
+               "v2": _t("v", j, s2.v, "m**3/kg"), "P1": _t("P", i, s1.P, "Pa"), "v1": _t("v", i, s1.v, "m**3/kg")})
+    e = Hp / w if comp else w / Hp
+    E = Calc("η_p,S", e, "", "{H}/{w}" if comp else "{w}/{H}", "schultz.head",
+             {"H": Term("H_p,S", Hp, "J/kg"), "w": Term("w_in", w, "J/kg")})
+    D = Calc("Δη_p", 100.0 * (e - eta_p), "", "100·({eS} − {e})", "schultz.head",
+             {"eS": Term("η_p,S", e, ""), "e": Term("η_p", eta_p, "")},
+             note="percentage points: the code method (Schultz) against the direct integration")
+    calcs += [NS, F, HP, E, D]
+    facts.append(f"Schultz (1962) method, as used by ASME PTC 10, from the same end states: f = {f:.5f}, "
+                 f"η_p = {e:.5f}, which differs from the direct integration by {100 * (e - eta_p):+.3f} points.")
+    return {"head_schultz": HP, "eta_p_schultz": E, "f_schultz": F, "n_s": NS}
+
+
+# -- coolers, heaters, throttles ------------------------------------------------------------------
+def heat_exchanger(ctx: Ctx, name: str, process: str, i: int, s1: State, P2: float, T2: float,
+                   drop_calc: Calc | None) -> LegResult:
+    j = i + 1
+    gas = ctx.gas
+    path = [s1] + [ctx.state(s1.P + (P2 - s1.P) * x, s1.T + (T2 - s1.T) * x)
+                   for x in (k / PATH_POINTS for k in range(1, PATH_POINTS))]
+    s2 = ctx.state(P2, T2)
+    path.append(s2)
+    calcs = [drop_calc] if drop_calc is not None else []
+    calcs += _h_calcs(gas, [(str(i), s1), (str(j), s2)])
+    qv = s2.h - s1.h
+    Q = Calc("q_in", qv, "J/kg", "{h2} − {h1}", "flow.firstlaw_heat",
+             {"h2": _t("h", j, s2.h, "J/kg"), "h1": _t("h", i, s1.h, "J/kg")})
+    D = Calc("Q̇", ctx.m_dot * qv, "W", "{m}·{w}", "flow.power", _flow_terms(ctx.m_dot, qv, "q_in"),
+             note="negative: heat removed from the gas" if qv < 0 else "")
+    W = Calc("w_in", 0.0, "J/kg", "0", "flow.firstlaw_heat", note="no shaft work")
+    P = Calc("P_gas", 0.0, "W", "0", "flow.firstlaw_heat")
+    calcs += [Q, D]
+    return LegResult(name, process, i, s1, s2, {"work_in": W, "duty": D, "power": P, "q_in": Q}, tuple(calcs),
+                     tuple(path), (), ())
+
+
+def throttle(ctx: Ctx, name: str, i: int, s1: State, P2: float) -> LegResult:
+    j = i + 1
+    if ctx.ideal:
+        s2 = ctx.gas.state_PT(P2, s1.T)
+        path = [s1] + [ctx.gas.state_PT(P, s1.T) for P in _path_P(s1.P, P2, 4)] + [s2]
+        note = "ideal gas: enthalpy depends on temperature only, so the temperature does not change"
+    else:
+        path, T = [s1], s1.T
+        for P in _path_P(s1.P, P2, 4) + [P2]:
+            p = solve_T(ctx.eos, P, T, "h", s1.h, f"the inlet enthalpy h = {s1.h:.6g} J/kg")
+            T = p.state.T
+            path.append(p.state)
+        s2 = path[-1]
+        note = "T at P_2 with h_2 = h_1 (equation of state)"
+    calcs = [Calc(f"h_{j}", s1.h, "J/kg", "{h1}", "flow.throttle", {"h1": _t("h", i, s1.h, "J/kg")},
+                  note="adiabatic, no work: enthalpy is conserved"),
+             Calc(f"T_{j}", s2.T, "K", f"T(P_{j}, h_{j})", ctx.gas.eos_method, note=note)]
+    dT = Calc("ΔT", s2.T - s1.T, "K", "{T2} − {T1}", "flow.throttle",
+              {"T2": _t("T", j, s2.T, "K"), "T1": _t("T", i, s1.T, "K")}, difference=True)
+    calcs.append(dT)
+    zero_w = Calc("w_in", 0.0, "J/kg", "0", "flow.throttle")
+    zero = Calc("Q̇", 0.0, "W", "0", "flow.throttle")
+    facts = [f"Throttle: the temperature changes by {s2.T - s1.T:+.4g} K (Joule–Thomson effect)."]
+    return LegResult(name, "throttle", i, s1, s2, {"work_in": zero_w, "duty": zero,
+                                                   "power": Calc("P_gas", 0.0, "W", "0", "flow.throttle"), "dT": dT},
+                     tuple(calcs), tuple(path), (), tuple(facts))
+
+
+# -- reversible flow processes ---------------------------------------------------------------------
+def reversible(ctx: Ctx, name: str, process: str, i: int, s1: State, P2: float, n: float | None) -> LegResult:
+    """Internally reversible steady flow: w_in = ∫v·dP along the path, q_in = Δh − w_in."""
+    j = i + 1
+    gas = ctx.gas
+    ins = {"P1": _t("P", i, s1.P, "Pa"), "P2": _t("P", j, P2, "Pa"), "v1": _t("v", i, s1.v, "m**3/kg")}
+    calcs: list[Calc] = []
+    if process == "isentropic":
+        if ctx.ideal:
+            k = gas.k
+            pts = [gas.state_Ps(P, s1.s) for P in _path_P(s1.P, P2)]
+            s2 = gas.state_Ps(P2, s1.s)
+            wv = k / (k - 1) * s1.P * s1.v * ((P2 / s1.P) ** ((k - 1) / k) - 1)
+            W = Calc("w_in", wv, "J/kg", "{k}/({k} − 1)·{P1}·{v1}·(({P2}/{P1})^(({k} − 1)/{k}) − 1)",
+                     "flow.work_isentropic_ideal", {**ins, "k": Term("k", k, "")})
+        else:
+            p1 = ctx.eos.pt(s1.P, s1.T)
+            pe, pts, _ = polytropic_path(ctx.eos, p1, P2, 1.0)
+            s2 = solve_T(ctx.eos, P2, pe.state.T, "s", s1.s, "the start entropy").state
+            pts = pts[1:-1]
+            wv = s2.h - s1.h
+            calcs.append(Calc(f"T_{j}", s2.T, "K", f"T(P_{j}, s = s_{i})", "eos.real"))
+            calcs += _h_calcs(gas, [(str(i), s1), (str(j), s2)])
+            W = Calc("w_in", wv, "J/kg", "{h2} − {h1}", "flow.firstlaw_adiabatic",
+                     {"h2": _t("h", j, s2.h, "J/kg"), "h1": _t("h", i, s1.h, "J/kg")}, note="= ∫v·dP at constant s")
+    elif process == "isothermal":
+        pts = [ctx.state(P, s1.T) for P in _path_P(s1.P, P2)]
+        s2 = ctx.state(P2, s1.T)
+        if ctx.ideal:
+            wv = gas.R * s1.T * math.log(P2 / s1.P)
+            W = Calc("w_in", wv, "J/kg", "{R}·{T}·ln({P2}/{P1})", "flow.work_isothermal_ideal",
+                     {"R": Term("R", gas.R, "J/(kg*K)"), "T": _t("T", i, s1.T, "K"), **ins})
+        else:
+            qv = s1.T * (s2.s - s1.s)
+            calcs += _h_calcs(gas, [(str(i), s1), (str(j), s2)])
+            calcs.append(Calc("q_in", qv, "J/kg", "{T}·({s2} − {s1})", "heat.isothermal",
+                              {"T": _t("T", i, s1.T, "K"), "s2": _t("s", j, s2.s, "J/(kg*K)"),
+                               "s1": _t("s", i, s1.s, "J/(kg*K)")}))
+            wv = s2.h - s1.h - qv
+            W = Calc("w_in", wv, "J/kg", "({h2} − {h1}) − {q}", "flow.firstlaw_heat",
+                     {"h2": _t("h", j, s2.h, "J/kg"), "h1": _t("h", i, s1.h, "J/kg"), "q": Term("q_in", qv, "J/kg")})
+    else:
+        v_at = [s1.v * (s1.P / P) ** (1.0 / n) for P in _path_P(s1.P, P2)]
+        v2 = s1.v * (s1.P / P2) ** (1.0 / n)
+        calcs.append(Calc(f"v_{j}", v2, "m**3/kg", "{v1}·({P1}/{P2})^(1/{n})", "path.polytropic",
+                          {**ins, "n": Term("n", n, "")}))
+        pts = [_state_Pv(ctx, P, v, s1) for P, v in zip(_path_P(s1.P, P2), v_at)]
+        s2 = _state_Pv(ctx, P2, v2, s1)
+        if abs(n - 1.0) < 1e-9:
+            wv = s1.P * s1.v * math.log(P2 / s1.P)
+            W = Calc("w_in", wv, "J/kg", "{P1}·{v1}·ln({P2}/{P1})", "flow.work_polytropic", ins)
+        else:
+            wv = n / (n - 1) * (P2 * v2 - s1.P * s1.v)
+            W = Calc("w_in", wv, "J/kg", "{n}/({n} − 1)·({P2}·{v2} − {P1}·{v1})", "flow.work_polytropic",
+                     {**ins, "n": Term("n", n, ""), "v2": _t("v", j, v2, "m**3/kg")})
+    calcs.append(W)
+    qv = (s2.h - s1.h) - W.value
+    if process == "isentropic":
+        Q = Calc("q_in", 0.0, "J/kg", "0", "flow.firstlaw_adiabatic")
+    else:
+        Q = Calc("q_in", qv, "J/kg", "({h2} − {h1}) − {w}", "flow.firstlaw_heat",
+                 {"h2": _t("h", j, s2.h, "J/kg"), "h1": _t("h", i, s1.h, "J/kg"), "w": Term("w_in", W.value, "J/kg")})
+    if not any(c.symbol == "q_in" for c in calcs):
+        calcs.append(Q)
+    Qc = next(c for c in calcs if c.symbol == "q_in")
+    D = Calc("Q̇", ctx.m_dot * Qc.value, "W", "{m}·{w}", "flow.power", _flow_terms(ctx.m_dot, Qc.value, "q_in"))
+    P = Calc("P_gas", ctx.m_dot * W.value, "W", "{m}·{w}", "flow.power", _flow_terms(ctx.m_dot, W.value))
+    calcs += [D, P]
+    q = {"work_in": W, "head": W, "duty": D, "power": P, "q_in": Qc}
+    nc = _n_calc(i, s1, s2)
+    if nc is not None:
+        calcs.append(nc)
+        q["n"] = nc
+    return LegResult(name, process, i, s1, s2, q, tuple(calcs), tuple([s1, *pts, s2]), (),
+                     ("Internally reversible steady flow: shaft work in = ∫v·dP along the path; the flow work is "
+                      "−∫v·dP.",))
+
+
+def _state_Pv(ctx: Ctx, P: float, v: float, s1: State) -> State:
+    if ctx.ideal:
+        return ctx.gas.state_Pv(P, v)
+    return solve_T(ctx.eos, P, s1.T * (P * v) / (s1.P * s1.v), "v", v, f"v = {v:.6g} m3/kg").state

@@ -1,0 +1,300 @@
+"""The steady-flow engine: a validated ``system: flow`` job in, results out.
+
+The start state and its flow (mass, molar, actual or standard volume flow), then each leg from the
+end of the one before: compressor and expander stages (a compressor may be staged with
+intercoolers), coolers and heaters, throttles, and reversible flow processes. Every number is a
+``Calc`` with a method id; see :mod:`calcdoc._flowlegs` for the legs and :mod:`calcdoc._flowpath`
+for the real-gas path integration. Sign convention: shaft work and heat INTO the gas are positive.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from ._flowjob import LegOptions, Staging, problem_at, read_options
+from ._flowlegs import Ctx, heat_exchanger, machine, reversible, throttle
+from ._flowpath import Eos
+from .calc import Calc, Term
+from .engine import _basis, make_gas, saturation_near, site_calcs, software_versions
+from .errors import JobError, PhysicsError
+from .gas import RealGas, State
+from .jobfile import Job, LegSpec
+from .processes import LegResult
+from .results import Results, StateRecord
+from .staging import stage_ratio_calc, suction_pressures
+
+__all__ = ["FlowResults", "run_flow"]
+
+#: A state closer than this to its dew (saturation) temperature gets a warning [K] (common practice).
+NEAR_DEW_K = 5.0
+
+
+@dataclass(frozen=True)
+class FlowResults(Results):
+    """Results of a steady-flow job: adds the train totals (gas power, shaft power, duties)."""
+
+    totals: tuple[Calc, ...] = ()
+
+    def all_calcs(self):
+        yield from super().all_calcs()
+        yield from self.totals
+
+
+def run_flow(job: Job) -> FlowResults:
+    """Compute a steady-flow job: states, legs (with staging expanded), totals and warnings."""
+    job, options = read_options(job)
+    gas, gas_calcs = make_gas(job)
+    eos = Eos(gas) if isinstance(gas, RealGas) else None
+    ctx = Ctx(gas, eos, 0.0)
+    warnings: list[str] = []
+    if eos is not None and eos.envelope_note:
+        warnings.append(f"Gas: {eos.envelope_note}; mixture states are flashed without an imposed phase.")
+    P1, T1 = job.start.pressure.si, job.start.temperature.si
+    try:
+        s1 = ctx.state(P1, T1)
+    except PhysicsError as exc:
+        raise JobError([job.problem("start", f"the start state cannot be computed: {exc}",
+                                    "check the start pressure and temperature against the fluid's range")]) from None
+    flow = _flow_calcs(job, ctx, s1)
+    ctx.m_dot = flow["m_dot"].value
+    start_calcs = site_calcs(job) + list(gas_calcs) + [Calc("v_1", s1.v, "m**3/kg", "v(P_1, T_1)", gas.eos_method)]
+    warnings += _phase_warnings(ctx, "Start state", [s1], True)
+    legs: list[LegResult] = []
+    staging_json = []
+    s = s1
+    for leg, opt in zip(job.legs, options):
+        try:
+            made, info = _leg(job, ctx, leg, opt, len(legs) + 1, s)
+        except PhysicsError as exc:
+            raise JobError([job.problem(f"{leg.path}.end", f"leg '{leg.name}': {exc}",
+                                        "check the end target, the efficiency and the gas against the start of "
+                                        "this leg")]) from None
+        if info:
+            staging_json.append(info)
+        for res in made:
+            warnings += _phase_warnings(ctx, f"Leg '{res.name}'", list(res.path), res.process in ("cooler", "throttle",
+                                                                                                   "expander"))
+            legs.append(res)
+            s = res.end
+    records = tuple(StateRecord(k + 1, str(k + 1), st, V_dot=ctx.m_dot * st.v)
+                    for k, st in enumerate([s1] + [leg.end for leg in legs]))
+    totals = _totals(legs)
+    basis = _basis(job, gas)
+    basis["flow"] = {"standard": None if job.start.standard_volume_flow is None else {
+        "pressure": {"value": job.start.standard_pressure.si, "unit": "Pa"},
+        "temperature": {"value": job.start.standard_temperature.si, "unit": "K"}}}
+    extra = {"totals": {c.symbol: {"value": c.value, "unit": c.unit} for c in totals}}
+    if staging_json:
+        extra["staging"] = staging_json
+    if eos is not None:
+        extra["eos_flashes"] = gas.flashes
+    return FlowResults(job, gas, "flow", None, flow, records, tuple(legs), tuple(start_calcs), (), tuple(warnings),
+                       basis, software_versions(), extra, saturation_near(gas, legs), totals=totals)
+
+
+def _flow_calcs(job: Job, ctx: Ctx, s1: State) -> dict[str, Calc]:
+    st = job.start
+    M = ctx.gas.M
+    out: dict[str, Calc] = {}
+    if st.mass_flow is not None:
+        m = st.mass_flow.si
+        out["m_dot"] = Calc("ṁ", m, "kg/s", "{m}", "input", {"m": Term("ṁ", m, "kg/s")})
+    elif st.molar_flow is not None:
+        n = st.molar_flow.si
+        m = n * M
+        out["m_dot"] = Calc("ṁ", m, "kg/s", "{n}·{M}", "flow.mass_flow", {"n": Term("ṅ", n, "mol/s"),
+                                                                         "M": Term("M", M, "kg/mol")})
+    elif st.volume_flow is not None:
+        V = st.volume_flow.si
+        m = V / s1.v
+        out["m_dot"] = Calc("ṁ", m, "kg/s", "{V}/{v1}", "flow.mass_flow", {"V": Term("V̇_1", V, "m**3/s"),
+                                                                         "v1": Term("v_1", s1.v, "m**3/kg")},
+                            note="actual volume flow at the start state")
+    else:
+        Ps, Ts = st.standard_pressure.si, st.standard_temperature.si
+        try:
+            sstd = ctx.state(Ps, Ts)
+        except PhysicsError as exc:
+            raise JobError([job.problem("start.standard_pressure", f"the standard reference state cannot be "
+                                        f"computed: {exc}", "check standard_pressure and standard_temperature")]) from None
+        out["v_std"] = Calc("v_std", sstd.v, "m**3/kg", "v(P_std, T_std)", ctx.gas.eos_method,
+                            {"P": Term("P_std", Ps, "Pa"), "T": Term("T_std", Ts, "K")},
+                            note=f"reference conditions stated in the job: {st.standard_pressure.entered}, "
+                                 f"{st.standard_temperature.entered}")
+        V = st.standard_volume_flow.si
+        m = V / sstd.v
+        out["V_dot_std"] = Calc("V̇_std", V, "m**3/s", "{V}", "input", {"V": Term("V̇_std", V, "m**3/s")})
+        out["m_dot"] = Calc("ṁ", m, "kg/s", "{V}/{v}", "flow.mass_flow", {"V": Term("V̇_std", V, "m**3/s"),
+                                                                        "v": Term("v_std", sstd.v, "m**3/kg")})
+    out["n_dot"] = Calc("ṅ", m / M, "mol/s", "{m}/{M}", "flow.mass_flow", {"m": Term("ṁ", m, "kg/s"),
+                                                                          "M": Term("M", M, "kg/mol")})
+    out["V_dot_1"] = Calc("V̇_1", m * s1.v, "m**3/s", "{m}·{v1}", "state.volume",
+                          {"m": Term("ṁ", m, "kg/s"), "v1": Term("v_1", s1.v, "m**3/kg")},
+                          note="actual volume flow at the start state")
+    return out
+
+
+def _end_pressure(job: Job, leg: LegSpec, s: State) -> float:
+    if "pressure" in leg.end:
+        return leg.end["pressure"].si
+    return s.P * leg.end["pressure_ratio"].si
+
+
+def _target_inp(leg: LegSpec):
+    return leg.end.get("pressure") or leg.end.get("pressure_ratio")
+
+
+def _leg(job: Job, ctx: Ctx, leg: LegSpec, opt: LegOptions, i: int, s: State) -> tuple[list[LegResult], dict]:
+    proc = leg.process
+    if proc in ("cooler", "heater"):
+        T2 = leg.end["temperature"].si
+        if proc == "cooler" and T2 > s.T:
+            raise problem_at(job, leg.end["temperature"], f"the cooler outlet {leg.end['temperature'].entered} is "
+                             f"above its inlet temperature ({s.T - 273.15:.4g} °C)",
+                             "a cooler lowers the temperature; use a heater, or a lower outlet temperature")
+        if proc == "heater" and T2 < s.T:
+            raise problem_at(job, leg.end["temperature"], f"the heater outlet {leg.end['temperature'].entered} is "
+                             f"below its inlet temperature ({s.T - 273.15:.4g} °C)",
+                             "a heater raises the temperature; use a cooler, or a higher outlet temperature")
+        P2, dcalc = _drop(job, opt.drop, i, s.P)
+        return [heat_exchanger(ctx, leg.name, proc, i, s, P2, T2, dcalc)], {}
+    P2 = _end_pressure(job, leg, s)
+    inp = _target_inp(leg)
+    if proc == "compressor" and P2 <= s.P:
+        raise problem_at(job, inp, f"the compressor's end pressure ({P2 / 1e3:.6g} kPa) is not above its start "
+                         f"({s.P / 1e3:.6g} kPa)", "give an end pressure above the start, or use an expander or throttle")
+    if proc in ("expander", "throttle") and P2 >= s.P:
+        raise problem_at(job, inp, f"the {proc}'s end pressure ({P2 / 1e3:.6g} kPa) is not below its start "
+                         f"({s.P / 1e3:.6g} kPa)", "give an end pressure below the start (pressure_ratio is end/start, "
+                         "below 1 for an expansion)")
+    if proc == "throttle":
+        return [throttle(ctx, leg.name, i, s, P2)], {}
+    if proc in ("polytropic", "isentropic", "isothermal"):
+        return [reversible(ctx, leg.name, proc, i, s, P2, leg.n.si if leg.n is not None else None)], {}
+    eta_p = opt.eta_p.si if opt.eta_p else None
+    eta_s = opt.eta_s.si if opt.eta_s else None
+    eta_m = opt.eta_m.si if opt.eta_m else None
+    if opt.staging is not None:
+        return _staged(job, ctx, leg, opt.staging, i, s, P2, eta_p, eta_s, eta_m)
+    T2m = leg.end["temperature"].si if "temperature" in leg.end else None
+    return [machine(ctx, leg.name, proc, i, s, P2, eta_p, eta_s, eta_m, T2m)], {}
+
+
+def _drop(job: Job, drop, i: int, P1: float) -> tuple[float, Calc | None]:
+    j = i + 1
+    P2 = drop.outlet(P1)
+    if drop.inp is None:
+        return P1, None
+    if P2 <= 0:
+        raise problem_at(job, drop.inp, f"the pressure drop {drop.inp.entered} is larger than the inlet pressure "
+                         f"({P1 / 1e3:.6g} kPa)", "give a drop smaller than the inlet pressure")
+    if drop.fraction is not None:
+        return P2, Calc(f"P_{j}", P2, "Pa", "{P1}·(1 − {d})", "flow.pressure_drop",
+                        {"P1": Term(f"P_{i}", P1, "Pa"), "d": Term("δ", drop.fraction, "")})
+    return P2, Calc(f"P_{j}", P2, "Pa", "{P1} − {dP}", "flow.pressure_drop",
+                    {"P1": Term(f"P_{i}", P1, "Pa"), "dP": Term("ΔP", drop.absolute, "Pa")})
+
+
+def _train(job, ctx, leg, st: Staging, N, i, s, P_out, eta_p, eta_s, eta_m) -> list[LegResult]:
+    d = st.drop
+    if st.T_cool.si > 0 and N > 1:
+        pass
+    rcalc = stage_ratio_calc(s.P, P_out, N, d.fraction, d.absolute)
+    Ps = suction_pressures(s.P, rcalc.value, N, d.fraction, d.absolute)
+    out: list[LegResult] = []
+    for k in range(N):
+        Pd = rcalc.value * Ps[k] if k < N - 1 else P_out
+        res = machine(ctx, f"{leg.name}, stage {k + 1}" if N > 1 else leg.name, "compressor", i, s, Pd,
+                      eta_p, eta_s, eta_m, None)
+        if k == 0:
+            res = _with(res, calcs=(rcalc,) + res.calcs)
+        out.append(res)
+        s, i = res.end, i + 1
+        if k < N - 1:
+            if st.T_cool.si > s.T:
+                raise problem_at(job, st.T_cool, f"the intercooler outlet {st.T_cool.entered} is above the discharge "
+                                 f"temperature of stage {k + 1} ({s.T - 273.15:.4g} °C)",
+                                 "give an intercooler outlet below the stage discharge temperature")
+            P2, dc = _drop(job, d, i, s.P)
+            hx = heat_exchanger(ctx, f"{leg.name}, intercooler {k + 1}", "cooler", i, s, P2, st.T_cool.si, dc)
+            out.append(hx)
+            s, i = hx.end, i + 1
+    return out
+
+
+def _staged(job, ctx, leg, st: Staging, i, s, P_out, eta_p, eta_s, eta_m) -> tuple[list[LegResult], dict]:
+    if st.stages is not None:
+        legs = _train(job, ctx, leg, st, st.stages, i, s, P_out, eta_p, eta_s, eta_m)
+        why = (f"Staged into {st.stages} stages with equal pressure ratios (allowing for the intercooler pressure "
+               f"drops), as the job asks.")
+        info = {"leg": leg.name, "stages": st.stages, "rule": "given number of stages"}
+    else:
+        limit = st.T_max.si
+        tried = []
+        legs = []
+        for N in range(1, st.max_stages + 1):
+            legs = _train(job, ctx, leg, st, N, i, s, P_out, eta_p, eta_s, eta_m)
+            Tmax = max(r.end.T for r in legs if r.process == "compressor")
+            tried.append((N, Tmax))
+            if Tmax <= limit:
+                break
+        else:
+            raise problem_at(job, st.T_max, f"no number of stages up to {st.max_stages} keeps every discharge at or "
+                             f"below {st.T_max.entered} ({st.max_stages} stages give {tried[-1][1] - 273.15:.4g} °C)",
+                             "raise max_stages, lower the intercooler outlet temperature, or review the limit")
+        N = tried[-1][0]
+        steps = "; ".join(f"{n} stage{'s' if n > 1 else ''}: highest discharge {T - 273.15:.4g} °C "
+                          f"({'within' if T <= limit else 'above'} the limit)" for n, T in tried)
+        why = (f"Fewest stages that keep every discharge temperature at or below {st.T_max.entered}: {N}. "
+               f"Trials with equal stage ratios: {steps}.")
+        info = {"leg": leg.name, "stages": N, "rule": "fewest stages under the discharge-temperature limit",
+                "limit": {"value": limit, "unit": "K"},
+                "trials": [{"stages": n, "max_discharge_temperature": {"value": T, "unit": "K"}} for n, T in tried]}
+    r = next(c for c in legs[0].calcs if c.symbol == "r_stage")
+    info["stage_ratio"] = r.value
+    legs[0] = _with(legs[0], facts=(why,) + legs[0].facts)
+    return legs, info
+
+
+def _with(res: LegResult, **kw) -> LegResult:
+    import dataclasses
+
+    return dataclasses.replace(res, **kw)
+
+
+def _totals(legs: list[LegResult]) -> tuple[Calc, ...]:
+    out = []
+    for key, sym, what in (("power", "ΣP_gas", "gas power"), ("shaft_power", "ΣP_shaft", "shaft power"),
+                           ("duty", "ΣQ̇", "heat duty")):
+        items = [(leg, leg.quantities[key]) for leg in legs if key in leg.quantities]
+        if not items or (key == "shaft_power" and not items):
+            continue
+        names = {f"x{k}": Term(c.symbol + f" ({leg.name})", c.value, c.unit) for k, (leg, c) in enumerate(items)}
+        eq = " + ".join("{" + k + "}" for k in names)
+        out.append(Calc(sym, sum(c.value for _, c in items), "W", eq, "flow.total", names, note=f"total {what}"))
+    return tuple(out)
+
+
+def _phase_warnings(ctx: Ctx, label: str, states: list[State], check_all: bool) -> list[str]:
+    """Warnings for states in or near the two-phase region: pure fluids against the saturation
+    temperature, mixtures against the dew temperature of the phase envelope."""
+    eos = ctx.eos
+    if eos is None:
+        return []
+    for s in states:
+        if s.phase in ("two-phase", "liquid", "supercritical liquid"):
+            dew = eos.dew_temperature(s.P)
+            extra = f"; the dew temperature at {s.P / 1e3:.5g} kPa is {dew - 273.15:.4g} °C" if dew else ""
+            return [f"{label}: the fluid is {s.phase} at P = {s.P / 1e3:.5g} kPa, T = {s.T - 273.15:.4g} °C{extra}. "
+                    "Condensation: check that liquid is acceptable and that the properties used apply."]
+    pick = states if (eos.mixture or check_all) else [states[0], states[-1]]
+    for s in pick:
+        dew = eos.dew_temperature(s.P)
+        if dew is None:
+            continue
+        if s.T <= dew:
+            return [f"{label}: the state at P = {s.P / 1e3:.5g} kPa, T = {s.T - 273.15:.4g} °C is at or below the "
+                    f"dew temperature ({dew - 273.15:.4g} °C at that pressure): liquid can form."]
+        if s.T - dew < NEAR_DEW_K:
+            return [f"{label}: the gas comes within {s.T - dew:.2g} K of its dew temperature "
+                    f"({dew - 273.15:.4g} °C at {s.P / 1e3:.5g} kPa); condensation is possible."]
+    return []
