@@ -93,6 +93,10 @@ QUANTITIES: dict[str, Quantity] = {q.name: q for q in (
     _q("duty", "power", "leg", "duty", ("flow",), symbol="Q̇"),
     _q("power", "power", "leg", "power", ("flow",), symbol="P_gas", title="gas power"),
     _q("shaft_power", "power", "leg", "shaft_power", ("flow",), symbol="P_shaft", title="shaft power"),
+    # train totals over every leg (one driver for a staged machine, the total cooling load)
+    _q("total_power", "power", "total", "ΣP_gas", ("flow",), symbol="ΣP_gas", title="total gas power"),
+    _q("total_shaft_power", "power", "total", "ΣP_shaft", ("flow",), symbol="ΣP_shaft", title="total shaft power"),
+    _q("total_duty", "power", "total", "ΣQ̇", ("flow",), symbol="ΣQ̇", title="net heat duty of the train"),
 )}
 
 #: Other spellings engineers write, mapped to the names above.
@@ -137,6 +141,9 @@ class Places:
 
     def check(self, q: Quantity, names: list[tuple[str, Node]], add) -> None:
         for name, node in names:
+            if q.scope == "total":
+                add(node, f"{q.name} is a total over the whole train and takes no 'at'", "remove 'at'")
+                continue
             if name in self.legs:
                 continue
             if name in self.labels:
@@ -327,6 +334,11 @@ def locations(job: Job, results, q: Quantity, at: tuple[str, ...], where: tuple[
         return c, leg.name
 
     out: list[tuple[str, Calc]] = []
+    if q.scope == "total":
+        found = [c for c in getattr(results, "totals", ()) if c.symbol == q.attr]
+        if not found:
+            fail(f"this job has no {q.title}", "name a quantity this job computes")
+        return [("train", found[0])]
     if not at:
         if q.scope in ("state", "record"):
             for rec in results.states:
@@ -343,13 +355,16 @@ def locations(job: Job, results, q: Quantity, at: tuple[str, ...], where: tuple[
                  f"legs and their quantities: {_leg_quantities(results)}")
         return out
     for name in at:
-        if name in legs:
-            c, text = at_leg(legs[name])
-            if c is None:
-                leg = legs[name]
-                fail(f"leg '{name}' ({leg.process}) has no {q.name}",
-                     f"its quantities are: {', '.join(leg.quantities) or 'none'}; name a leg that has {q.name}")
-            out.append((text, c))
+        # a compressor leg split into stages by the job's staging block answers for every stage
+        stages = [n for n in legs if n.startswith(f"{name}, stage ")] if name not in legs else [name]
+        if stages:
+            for stage in stages:
+                c, text = at_leg(legs[stage])
+                if c is None:
+                    leg = legs[stage]
+                    fail(f"leg '{stage}' ({leg.process}) has no {q.name}",
+                         f"its quantities are: {', '.join(leg.quantities) or 'none'}; name a leg that has {q.name}")
+                out.append((text, c))
         elif name in recs and q.scope in ("state", "record"):
             c = at_state(recs[name])
             if c is None:

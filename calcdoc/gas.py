@@ -154,7 +154,11 @@ class RealGas(Gas):
         self.mixture = tuple(mixture)
         self.name = fluid if fluid else " + ".join(f"{x:.4g} {c}" for c, x in mixture)
         self.M = self.AS.molar_mass()
-        self.eos_refs = tuple(dict.fromkeys(CP.get_BibTeXKey(c, "EOS") for c in comps))
+        refs = [CP.get_BibTeXKey(c, "EOS") for c in comps]
+        if mixture:
+            # CoolProp's HEOS mixtures use the GERG-2008 mixing rules and departure functions
+            refs.append("Kunz-JCED-2012")
+        self.eos_refs = tuple(dict.fromkeys(refs))
         self.Tmin = self.AS.Tmin()
         self.Tmax = self.AS.Tmax()
         self.pmax = self.AS.pmax()

@@ -89,8 +89,8 @@ def result_si(c: Calc) -> Markup:
     return Markup(subst_value(Term(c.symbol, c.value, c.unit)))
 
 
-_SYM = re.compile(r"([A-Za-zΔηρ]+)_(\{[^}]*\}|[A-Za-z0-9]+)")
-_LETTER = re.compile(r"(?<![A-Za-z&#])([A-Za-z])(?![A-Za-z;])")
+_SYM = re.compile("([A-Za-zΔηρ\u0307]+)_(\\{[^}]*\\}|[A-Za-z0-9]+)")   # \u0307: the dot of a rate (V̇, Q̇)
+_LETTER = re.compile("(?<![A-Za-z&#])([A-Za-z]\u0307?)(?![A-Za-z;])")
 
 
 def _plain(text: str, italic: bool) -> str:
