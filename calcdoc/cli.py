@@ -31,6 +31,8 @@ def build_parser() -> argparse.ArgumentParser:
     r.add_argument("--out", "-o", default="out", metavar="DIR", help="output folder (default: ./out)")
     r.add_argument("--no-pdf", action="store_true", help="write the results JSON only (no PDF)")
     r.add_argument("--quiet", "-q", action="store_true", help="print nothing but errors")
+    r.add_argument("--jobs", "-j", type=int, default=0, metavar="N",
+                   help="with several job files: how many to compute at once (default: one per core)")
     r.add_argument("--debug", action="store_true",
                    help="on an internal error, write the traceback to calcdoc-debug.log in the output folder")
     r.add_argument("--changes-since", metavar="OLD.yaml",
@@ -127,7 +129,8 @@ def _run(args) -> int:
     if len(jobs) == 1:
         return max(_run_one(jobs[0], args), EXIT_BAD_INPUT if problems else EXIT_OK)
     opts = {"out": args.out, "no_pdf": args.no_pdf, "debug": args.debug, "changes_since": None}
-    return max(run_batch(jobs, opts, quiet=args.quiet), EXIT_BAD_INPUT if problems else EXIT_OK)
+    return max(run_batch(jobs, opts, quiet=args.quiet, workers=args.jobs or None),
+               EXIT_BAD_INPUT if problems else EXIT_OK)
 
 
 def _run_one(path: str, args, info: dict | None = None) -> int:
