@@ -159,8 +159,13 @@ class RealGas(Gas):
         self.Tmax = self.AS.Tmax()
         self.pmax = self.AS.pmax()
         self.pure = not mixture
-        self.Tc = self.AS.T_critical()
-        self.Pc = self.AS.p_critical()
+        if mixture:
+            # Tc and Pc serve the saturation checks of pure fluids only; CoolProp's critical-point search of a
+            # mixture takes seconds and often fails (several critical points or none, e.g. methane + ethane)
+            self.Tc = self.Pc = math.nan
+        else:
+            self.Tc = self.AS.T_critical()
+            self.Pc = self.AS.p_critical()
         self.flashes = 0
 
     def describe(self) -> str:
