@@ -259,12 +259,23 @@ class _Reader:
                 tol_rel = self.number(t["rel"]) if "rel" in t else 0.0
             if "unit" not in m:
                 self.add(node, "a numerical expected value needs its SI unit", "add unit: Pa (or '' if dimensionless)")
+        elif isinstance(value, str) and _looks_numeric(value):
+            self.add(m["value"], f"YAML reads '{value}' as text, not as a number",
+                     "write the exponent with its sign and the mantissa with a point (1.07478e+5) or write 107478.0")
         elif "tolerance" in m:
             self.add(m["tolerance"], "a text or boolean value is compared exactly", "remove the tolerance")
         unit = _plain(m["unit"]) if "unit" in m else ""
         src = self.source(m["source"]) if "source" in m else None
         return Expected(self.text(m["quantity"]), "" if unit is None else str(unit), value, formula, tol_abs, tol_rel,
                         self.text(m["why"]) if "why" in m else "", src)
+
+
+def _looks_numeric(text: str) -> bool:
+    try:
+        float(text)
+    except ValueError:
+        return False
+    return True
 
 
 def load_text(text: str, name: str) -> TopicFile:
