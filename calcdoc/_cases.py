@@ -169,8 +169,11 @@ class _Reader:
                 if child.kind != "scalar" or isinstance(child.value, bool):
                     self.add(child, "expected a number or an expression", "write for example 2.0e5 or 'P1*V1'")
                     continue
+                value = child.value
+                if isinstance(value, str) and _looks_numeric(value):
+                    value = float(value)    # YAML 1.1 reads 15.0e6 (no sign in the exponent) as text
                 self.formula(child)
-                given.append((key, child.value))
+                given.append((key, value))
         job = None
         if "job" in m:
             if m["job"].kind != "map":

@@ -35,6 +35,15 @@ def build_parser() -> argparse.ArgumentParser:
     c = sub.add_parser("check", help="validate job file(s) without computing or writing anything",
                        description="Read and validate job files; report every problem found (exit 2) or OK (exit 0).")
     c.add_argument("jobs", nargs="+", metavar="JOB.yaml")
+    v = sub.add_parser("selftest", help="verify this installation: run every shipped reference case and write a "
+                                        "verification report",
+                       description="Run every reference case that ships inside calcdoc and write "
+                                   "OUT/calcdoc-selftest.json and .pdf: each case's source, inputs, expected value "
+                                   "with its tolerance, computed value, deviation and result, the installation's "
+                                   "versions and a verdict. Exit 0 when all cases pass, 1 otherwise.")
+    v.add_argument("--out", "-o", default="out", metavar="DIR", help="output folder (default: ./out)")
+    v.add_argument("--no-pdf", action="store_true", help="write the JSON only (no PDF)")
+    v.add_argument("--quiet", "-q", action="store_true", help="print nothing but the verdict and failures")
     return p
 
 
@@ -46,7 +55,32 @@ def main(argv: list[str] | None = None) -> int:
         return EXIT_OK
     if args.command == "check":
         return _check(args)
+    if args.command == "selftest":
+        return _selftest(args)
     return _run(args)
+
+
+def _selftest(args) -> int:
+    from . import selftest
+
+    try:
+        report = selftest.run_all()
+        written = selftest.write(report, args.out, pdf=not args.no_pdf)
+    except CalcdocError as exc:
+        print(f"error: {exc}", file=sys.stderr)
+        return EXIT_INTERNAL
+    for r in report.results:
+        if r.status != "pass":
+            print(f"  {r.case.id} {r.status.upper()}: {r.case.title}" + (f" ({r.error})" if r.error else ""))
+        elif not args.quiet:
+            print(f"  {r.case.id} pass")
+    n = len(report.results)
+    print(f"calcdoc {__version__} selftest: {'PASS' if report.passed else 'FAIL'} ({report.count('pass')} of {n} "
+          f"cases pass)")
+    if not args.quiet:
+        for p in written:
+            print(f"  wrote {p}")
+    return EXIT_OK if report.passed else EXIT_CHECK_FAILED
 
 
 def _check(args) -> int:

@@ -266,7 +266,9 @@ def _num(x: Any) -> Any:
 
 def case_json(r: CaseResult, versions: dict[str, str]) -> dict:
     c = r.case
-    inputs: dict[str, Any] = {"given": {k: _num(v) if not isinstance(v, str) else v for k, v in r.given}}
+    values = dict(r.given)
+    inputs: dict[str, Any] = {"given": [{"name": k, "expression": expr if isinstance(expr, str) else None,
+                                         "value": _num(values.get(k))} for k, expr in c.given]}
     if c.job is not None:
         inputs["job"] = c.job
     else:
