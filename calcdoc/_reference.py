@@ -45,7 +45,7 @@ def _scipy_quad(f, a, b):
 def _scipy_brentq(f, a, b):
     from scipy.optimize import brentq
 
-    return brentq(f, a, b, xtol=1e-300, rtol=4.5e-16, maxiter=200)
+    return brentq(f, a, b, xtol=1e-300, rtol=1e-15, maxiter=200)
 
 
 @dataclass(frozen=True)
