@@ -190,3 +190,16 @@ def test_every_case_id_is_stable_in_form_and_unique():
 def test_json_is_deterministic():
     subset = [tf for tf in TOPICS if tf.topic in ("units", "constants")]
     assert selftest.dumps(selftest.run_all(subset)) == selftest.dumps(selftest.run_all(subset))
+
+
+def test_a_case_calcdoc_cannot_run_is_reported_not_raised():
+    text = CASE_FILE.replace(
+        "    call: {function: calcdoc.units.parse_quantity, args: [7 barg, pressure], kwargs: {atmosphere: 101325.0}}\n",
+        "    job:\n      gas: {fluid: NoSuchGas, model: real}\n"
+        "      start: {pressure: 1 MPa, temperature: 300 K, volume: 1 L}\n"
+        "      legs: [{name: Hold, process: isochoric, end: {temperature: 310 K}}]\n")
+    report = selftest.run_all([_cases.load_text(text, "extra.yaml")])
+    r = report.results[0]
+    assert r.status == "error" and "NoSuchGas" in r.error
+    assert not report.passed
+    assert selftest.to_json(report)["verdict"] == "fail"

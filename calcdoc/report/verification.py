@@ -10,6 +10,7 @@ import datetime as _dt
 import hashlib
 import json
 import os
+import re
 
 from markupsafe import Markup, escape
 
@@ -30,7 +31,9 @@ _KIND_SHORT = {"published": "published", "reference-library": "reference library
 def _sig(x, sig: int = 10) -> Markup:
     if isinstance(x, bool) or x is None or isinstance(x, str):
         return Markup(escape("—" if x is None else str(x).lower() if isinstance(x, bool) else x))
-    return fmt.num(float(x), sig, strip=True)
+    text = str(fmt.num(float(x), sig, strip=True))
+    # 1.500000000×10^7 → 1.5×10^7 (the plain range is stripped by fmt.num already)
+    return Markup(re.sub(r"(\.\d*?)0+(?=×10)", r"\1", text).replace(".×10", "×10"))
 
 
 def _tolerance(t: dict) -> Markup:
