@@ -31,7 +31,7 @@ def build_parser() -> argparse.ArgumentParser:
     r.add_argument("--out", "-o", default="out", metavar="DIR", help="output folder (default: ./out)")
     r.add_argument("--no-pdf", action="store_true", help="write the results JSON only (no PDF)")
     r.add_argument("--quiet", "-q", action="store_true", help="print nothing but errors")
-    r.add_argument("--jobs", "-j", type=int, default=0, metavar="N",
+    r.add_argument("--jobs", "-j", dest="workers", type=int, default=0, metavar="N",
                    help="with several job files: how many to compute at once (default: one per core)")
     r.add_argument("--debug", action="store_true",
                    help="on an internal error, write the traceback to calcdoc-debug.log in the output folder")
@@ -61,6 +61,15 @@ def build_parser() -> argparse.ArgumentParser:
     n.add_argument("--system", choices=("closed", "flow"), default="closed", help="closed (fixed mass) or flow")
     n.add_argument("path", metavar="FILE.yaml", nargs="?", help="where to write it (default: print it)")
     n.add_argument("--force", action="store_true", help="overwrite FILE.yaml if it exists")
+    st = sub.add_parser("selftest", help="verify this installation: run every shipped reference case and write a "
+                                        "verification report",
+                       description="Run every reference case that ships inside calcdoc and write "
+                                   "OUT/calcdoc-selftest.json and .pdf: each case's source, inputs, expected value "
+                                   "with its tolerance, computed value, deviation and result, the installation's "
+                                   "versions and a verdict. Exit 0 when all cases pass, 1 otherwise.")
+    st.add_argument("--out", "-o", default="out", metavar="DIR", help="output folder (default: ./out)")
+    st.add_argument("--no-pdf", action="store_true", help="write the JSON only (no PDF)")
+    st.add_argument("--quiet", "-q", action="store_true", help="print nothing but the verdict and failures")
     return p
 
 
@@ -78,7 +87,32 @@ def main(argv: list[str] | None = None) -> int:
         from . import _tools
 
         return getattr(_tools, args.command)(args)
+    if args.command == "selftest":
+        return _selftest(args)
     return _run(args)
+
+
+def _selftest(args) -> int:
+    from . import selftest
+
+    try:
+        report = selftest.run_all()
+        written = selftest.write(report, args.out, pdf=not args.no_pdf)
+    except CalcdocError as exc:
+        print(f"error: {exc}", file=sys.stderr)
+        return EXIT_INTERNAL
+    for r in report.results:
+        if r.status != "pass":
+            print(f"  {r.case.id} {r.status.upper()}: {r.case.title}" + (f" ({r.error})" if r.error else ""))
+        elif not args.quiet:
+            print(f"  {r.case.id} pass")
+    n = len(report.results)
+    print(f"calcdoc {__version__} selftest: {'PASS' if report.passed else 'FAIL'} ({report.count('pass')} of {n} "
+          f"cases pass)")
+    if not args.quiet:
+        for p in written:
+            print(f"  wrote {p}")
+    return EXIT_OK if report.passed else EXIT_CHECK_FAILED
 
 
 def _check(args) -> int:
@@ -129,7 +163,7 @@ def _run(args) -> int:
     if len(jobs) == 1:
         return max(_run_one(jobs[0], args), EXIT_BAD_INPUT if problems else EXIT_OK)
     opts = {"out": args.out, "no_pdf": args.no_pdf, "debug": args.debug, "changes_since": None}
-    return max(run_batch(jobs, opts, quiet=args.quiet, workers=args.jobs or None),
+    return max(run_batch(jobs, opts, quiet=args.quiet, workers=args.workers or None),
                EXIT_BAD_INPUT if problems else EXIT_OK)
 
 

@@ -108,7 +108,13 @@ class Parsed:
 
 def _pint_unit(text: str) -> str:
     text = text.strip()
-    return _ALIASES.get(text, text)
+    text = _ALIASES.get(text, text)
+    # the Btu engineers mean is the International Table Btu (1 Btu/lb = 2.326 kJ/kg exactly, NIST SP 811);
+    # pint's plain "Btu" is the rounded ISO value 1055.056 J
+    return _BTU.sub("Btu_it", text)
+
+
+_BTU = re.compile(r"\b(?:Btu|BTU)\b")
 
 
 def standard_atmosphere_pressure(z: float) -> float:
@@ -291,7 +297,7 @@ _SYSTEMS = {
     },
     "US": {
         "Pa": "psi", "K": "degF", "m**3": "ft**3", "kg": "lb", "m**3/kg": "ft**3/lb",
-        "J/kg": "Btu/lb", "J/(kg*K)": "Btu/(lb*degR)", "J": "Btu", "J/K": "Btu/degR", "W": "hp",
+        "J/kg": "Btu_it/lb", "J/(kg*K)": "Btu_it/(lb*degR)", "J": "Btu_it", "J/K": "Btu_it/degR", "W": "hp",
         "kg/s": "lb/hour", "mol/s": "lbmol/hour", "m**3/s": "ft**3/min", "kg/m**3": "lb/ft**3", "": "",
         "kg/mol": "lb/lbmol", "m": "ft",
     },
@@ -305,6 +311,7 @@ _PRETTY = {
     "g/mol": "g/mol", "lb/lbmol": "lb/lbmol", "m": "m", "ft": "ft", "K": "K", "Pa": "Pa",
     "J/kg": "J/kg", "J/(kg*K)": "J/(kg·K)", "J": "J", "J/K": "J/K", "W": "W", "m**3/s": "m³/s",
     "kg/mol": "kg/mol", "mol/s": "mol/s",
+    "Btu_it/lb": "Btu/lb", "Btu_it/(lb*degR)": "Btu/(lb·°R)", "Btu_it": "Btu", "Btu_it/degR": "Btu/°R",
 }
 
 

@@ -1,0 +1,139 @@
+"""The reference side of the verification cases: expected values from a stated formula or library call.
+
+A verification case writes its expected value as a small expression over its own given values, for
+example ``P1*V1*log(V2/V1)`` (a closed form from the cited textbook) or
+``quad(lambda V: PropsSI('P', 'T', T1, 'Dmass', m/V, 'Nitrogen'), V1, V2)`` (a reference library
+called directly). This module evaluates such expressions with Python's ``math`` module, CoolProp's
+``PropsSI`` and SciPy's ``quad`` and ``brentq`` only.
+
+It deliberately imports nothing from calcdoc: an expected value never passes through calcdoc's own
+code paths (a test checks the imports of this module). Expressions are parsed and only a small set of
+syntax is accepted (arithmetic, calls of the functions below, ``lambda``), so a case file cannot run
+arbitrary code.
+"""
+from __future__ import annotations
+
+import ast
+import math
+from dataclasses import dataclass, field
+from importlib import metadata
+
+__all__ = ["ExpressionError", "Evaluation", "FUNCTIONS", "LIBRARIES", "evaluate", "library_version", "names_used"]
+
+
+class ExpressionError(ValueError):
+    """An expression in a case file is malformed or uses something not allowed."""
+
+
+def _coolprop_propssi(*args):
+    import CoolProp.CoolProp as CP
+
+    return CP.PropsSI(*args)
+
+
+#: Relative accuracy asked of SciPy's adaptive quadrature (its ``epsrel``); absolute accuracy off.
+QUAD_EPSREL = 1e-12
+
+
+def _scipy_quad(f, a, b):
+    from scipy.integrate import quad
+
+    value, _abserr = quad(f, a, b, epsabs=0.0, epsrel=QUAD_EPSREL, limit=200)
+    return value
+
+
+def _scipy_brentq(f, a, b):
+    from scipy.optimize import brentq
+
+    return brentq(f, a, b, xtol=1e-300, rtol=1e-15, maxiter=200)
+
+
+@dataclass(frozen=True)
+class _Fn:
+    call: object
+    library: str          # distribution name whose version is recorded ("" for Python's math)
+    what: str             # one line for the report
+
+
+FUNCTIONS: dict[str, _Fn] = {
+    "PropsSI": _Fn(_coolprop_propssi, "CoolProp", "CoolProp.CoolProp.PropsSI (high-level interface), called directly"),
+    "quad": _Fn(_scipy_quad, "scipy", f"scipy.integrate.quad, adaptive Gauss–Kronrod, epsrel = {QUAD_EPSREL:g}"),
+    "brentq": _Fn(_scipy_brentq, "scipy", "scipy.optimize.brentq, bracketed root"),
+    "sqrt": _Fn(math.sqrt, "", "math.sqrt"),
+    "exp": _Fn(math.exp, "", "math.exp"),
+    "expm1": _Fn(math.expm1, "", "math.expm1"),
+    "log": _Fn(math.log, "", "math.log (natural logarithm)"),
+    "log1p": _Fn(math.log1p, "", "math.log1p"),
+    "log10": _Fn(math.log10, "", "math.log10"),
+    "abs": _Fn(abs, "", "absolute value"),
+    "min": _Fn(min, "", "minimum"),
+    "max": _Fn(max, "", "maximum"),
+}
+CONSTANTS = {"pi": math.pi, "inf": math.inf}
+
+#: Display names of the reference libraries by distribution name.
+LIBRARIES = {"CoolProp": "CoolProp", "scipy": "SciPy"}
+
+_ALLOWED = (ast.Expression, ast.BinOp, ast.UnaryOp, ast.Constant, ast.Name, ast.Load, ast.Call, ast.Lambda,
+            ast.arguments, ast.arg, ast.Add, ast.Sub, ast.Mult, ast.Div, ast.Pow, ast.USub, ast.UAdd)
+
+
+@dataclass(frozen=True)
+class Evaluation:
+    value: object
+    libraries: tuple[str, ...] = field(default_factory=tuple)   # distribution names used
+
+
+def _parse(text: str) -> ast.Expression:
+    try:
+        tree = ast.parse(str(text).strip(), mode="eval")
+    except SyntaxError as exc:
+        raise ExpressionError(f"'{text}' is not a valid expression ({exc.msg})") from None
+    for node in ast.walk(tree):
+        if not isinstance(node, _ALLOWED):
+            raise ExpressionError(f"'{text}': {type(node).__name__} is not allowed in an expected value; "
+                                  "use arithmetic, the functions " + ", ".join(FUNCTIONS) + " and lambda")
+        if isinstance(node, ast.Call):
+            if not isinstance(node.func, ast.Name) or node.func.id not in FUNCTIONS or node.keywords:
+                name = node.func.id if isinstance(node.func, ast.Name) else ast.unparse(node.func)
+                raise ExpressionError(f"'{text}': the call {name}(...) is not allowed; allowed: " + ", ".join(FUNCTIONS)
+                                      + " (positional arguments only)")
+        if isinstance(node, ast.Constant) and not isinstance(node.value, (int, float, str)):
+            raise ExpressionError(f"'{text}': the constant {node.value!r} is not allowed")
+    return tree
+
+
+def names_used(text: str) -> set[str]:
+    """Every plain name an expression refers to (givens, functions, lambda arguments)."""
+    return {n.id for n in ast.walk(_parse(text)) if isinstance(n, ast.Name)}
+
+
+def evaluate(text, given: dict[str, object]) -> Evaluation:
+    """Evaluate an expected-value expression over the case's given values.
+
+    A number is returned as it is. Unknown names raise :class:`ExpressionError` naming them.
+    """
+    if isinstance(text, bool):
+        raise ExpressionError(f"{text!r} is not a number or an expression")
+    if isinstance(text, (int, float)):
+        return Evaluation(float(text))
+    tree = _parse(text)
+    lambda_args = {a.arg for n in ast.walk(tree) if isinstance(n, ast.Lambda) for a in n.args.args}
+    used = {n.id for n in ast.walk(tree) if isinstance(n, ast.Name)}
+    unknown = sorted(used - set(given) - set(FUNCTIONS) - set(CONSTANTS) - lambda_args)
+    if unknown:
+        raise ExpressionError(f"'{text}' uses {', '.join(unknown)}, which the case does not give")
+    scope = {"__builtins__": {}}
+    scope.update(CONSTANTS)
+    scope.update({k: fn.call for k, fn in FUNCTIONS.items()})
+    scope.update(given)
+    value = eval(compile(tree, "<expected>", "eval"), scope)  # noqa: S307  (syntax restricted above)
+    libs = tuple(sorted({FUNCTIONS[n].library for n in used if n in FUNCTIONS and FUNCTIONS[n].library}))
+    return Evaluation(float(value) if isinstance(value, (int, float)) else value, libs)
+
+
+def library_version(dist: str) -> str:
+    try:
+        return metadata.version(dist)
+    except metadata.PackageNotFoundError:
+        return "not installed"
