@@ -162,9 +162,39 @@ def _run(args) -> int:
         return EXIT_BAD_INPUT
     if len(jobs) == 1:
         return max(_run_one(jobs[0], args), EXIT_BAD_INPUT if problems else EXIT_OK)
+    jobs, clashes = _distinct_outputs(jobs)
+    for msg in clashes:
+        print(f"error: {msg}", file=sys.stderr)
+    if not jobs:
+        return EXIT_BAD_INPUT
     opts = {"out": args.out, "no_pdf": args.no_pdf, "debug": args.debug, "changes_since": None}
     return max(run_batch(jobs, opts, quiet=args.quiet, workers=args.workers or None),
-               EXIT_BAD_INPUT if problems else EXIT_OK)
+               EXIT_BAD_INPUT if problems or clashes else EXIT_OK)
+
+
+def _distinct_outputs(paths: list[str]) -> tuple[list[str], list[str]]:
+    """Refuse a job whose calc number and revision give the same output names as an earlier job of the
+    batch (its report would overwrite the other's). Jobs that do not load are left to the batch to report."""
+    from .errors import JobError
+    from .jobfile import load
+    from .report.render import safe_stem
+
+    seen: dict[str, str] = {}
+    keep, clashes = [], []
+    for path in paths:
+        try:
+            t = load(path).calc
+        except JobError:
+            keep.append(path)
+            continue
+        stem = safe_stem(t.number, t.revision)
+        if stem in seen:
+            clashes.append(f"{path}: calc {t.number} rev {t.revision} is also {seen[stem]}; its report would "
+                           "overwrite that one's. Give each job its own calc number or revision; not run")
+            continue
+        seen[stem] = path
+        keep.append(path)
+    return keep, clashes
 
 
 def _run_one(path: str, args, info: dict | None = None) -> int:

@@ -40,3 +40,14 @@ def test_exit_code_is_the_worst_of_the_jobs(tmp_path, capsys):
 def test_an_empty_folder_is_bad_input(tmp_path, capsys):
     assert cli.main(["run", str(tmp_path), "--no-pdf", "-o", str(tmp_path / "out")]) == 2
     assert "no job files" in capsys.readouterr().err
+
+
+def test_two_jobs_with_the_same_calc_number_and_revision_are_not_both_written(tmp_path, capsys):
+    a = write(tmp_path, "a.yaml", ideal_job())
+    b = write(tmp_path, "b.yaml", ideal_job(P1="120 kPa"))          # same calc number and revision as a
+    out = tmp_path / "out"
+    assert cli.main(["run", str(a), str(b), "--no-pdf", "-o", str(out), "--jobs", "1"]) == 2
+    err = capsys.readouterr().err
+    assert f"{b}: calc T-LIM-001 rev A is also {a}" in err
+    # the report of a stands, not overwritten by b
+    assert json.loads((out / "T-LIM-001_revA.json").read_text())["states"][0]["P"]["value"] != 120e3
