@@ -426,7 +426,7 @@ class _Validator:
         P = self.quantity(m.get("pressure"), "pressure")
         T = self.quantity(m.get("temperature"), "temperature")
         kinds = {"volume": "volume", "mass": "mass", "mass_flow": "mass_flow", "molar_flow": "molar_flow",
-                 "volume_flow": "volume_flow", "standard_volume_flow": "volume_flow",
+                 "volume_flow": "volume_flow", "standard_volume_flow": "standard_volume_flow",
                  "standard_pressure": "pressure", "standard_temperature": "temperature"}
         vals = {k: self.quantity(m.get(k), kinds[k]) for k in kinds if k in keys}
         amount = [k for k in (("mass_flow", "molar_flow", "volume_flow", "standard_volume_flow") if system == "flow"

@@ -49,14 +49,25 @@ DIMENSIONS: dict[str, str] = {
     "mass_flow": "kg/s",
     "molar_flow": "mol/s",
     "volume_flow": "m**3/s",
+    "standard_volume_flow": "m**3/s",
     "density": "kg/m**3",
     "dimensionless": "",
 }
 
 # Gauge markers: a pressure unit followed by "g" (barg, psig, kPag, MPag) or "(g)"/" gauge".
-_GAUGE = re.compile(r"^(?P<unit>[A-Za-z]+?)(?:g|\s*\(g\)|\s+gauge)$")
-_ABS = re.compile(r"^(?P<unit>[A-Za-z]+?)(?:a|\s*\(a\)|\s+abs(?:olute)?)$")
-_PRESSURE_UNITS = {"bar", "mbar", "psi", "kPa", "MPa", "Pa", "kpa", "mpa", "atm", "inHg", "mmHg", "kgf/cm2"}
+_GAUGE = re.compile(r"^(?P<unit>[A-Za-z/0-9]+?)(?:g|\s*\(g\)|\s+gauge)$")
+_ABS = re.compile(r"^(?P<unit>[A-Za-z/0-9]+?)(?:a|\s*\(a\)|\s+abs(?:olute)?)$")
+_PRESSURE_UNITS = {"bar", "mbar", "psi", "kPa", "MPa", "Pa", "kpa", "mpa", "atm", "inHg", "mmHg", "kgf/cm2", "kg/cm2"}
+
+# Volume-flow units that name standard (reference) conditions: accepted only as a standard volume flow,
+# whose reference pressure and temperature the job states; converted as the plain volume unit.
+_STANDARD_FLOW: dict[str, tuple[float, str]] = {
+    "Nm3/h": (1.0, "m**3/hour"), "Nm3/s": (1.0, "m**3/s"), "Nm3/min": (1.0, "m**3/min"), "Nm3/d": (1.0, "m**3/day"),
+    "Sm3/h": (1.0, "m**3/hour"), "Sm3/s": (1.0, "m**3/s"), "Sm3/min": (1.0, "m**3/min"), "Sm3/d": (1.0, "m**3/day"),
+    "scfm": (1.0, "ft**3/min"), "SCFM": (1.0, "ft**3/min"), "scfh": (1.0, "ft**3/hour"), "SCFH": (1.0, "ft**3/hour"),
+    "scfd": (1.0, "ft**3/day"), "SCFD": (1.0, "ft**3/day"), "MMSCFD": (1e6, "ft**3/day"), "MMscfd": (1e6, "ft**3/day"),
+    "MMSCMD": (1e6, "m**3/day"), "MMscmd": (1e6, "m**3/day"),
+}
 _NUMBER = re.compile(r"^\s*(?P<num>[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(?P<unit>.*?)\s*$")
 _PERCENT = re.compile(r"^\s*(?P<num>[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*%\s*$")
 
@@ -69,7 +80,7 @@ _ALIASES = {
     "kg/h": "kg/hour", "kg/m3": "kg/m**3", "lb/ft3": "lb/ft**3", "lb/h": "lb/hour", "lb/hr": "lb/hour",
     "degC": "degC", "°C": "degC", "C": "degC", "degF": "degF", "°F": "degF", "F": "degF",
     "degR": "degR", "R": "degR", "K": "K", "kelvin": "K",
-    "kgf/cm2": "kgf/cm**2", "hp": "hp", "g/mol": "g/mol", "kg/kmol": "kg/kmol",
+    "kgf/cm2": "kgf/cm**2", "kg/cm2": "kgf/cm**2", "hp": "hp", "g/mol": "g/mol", "kg/kmol": "kg/kmol",
 }
 _ABSOLUTE_TEMPERATURE_UNITS = {"degC", "degF", "K", "degR"}
 
@@ -171,6 +182,7 @@ _EXAMPLES = {
     "mass_flow": "'12 kg/s' or '3000 kg/h'",
     "molar_flow": "'100 kmol/h'",
     "volume_flow": "'1200 m3/h' or '800 ft3/min'",
+    "standard_volume_flow": "'60000 Nm3/h', '5000 scfm', '12 MMSCFD' or '1200 m3/h'",
     "power": "'250 kW' or '340 hp'",
     "specific_energy": "'120 kJ/kg'",
     "specific_volume": "'0.1 m3/kg'",
@@ -222,6 +234,13 @@ def parse_quantity(value, kind: str, atmosphere: float | None = None, allow_perc
     elif unit_text.endswith(("g", "(g)")) and kind != "pressure" and unit_text[:-1] in _PRESSURE_UNITS:
         raise UnitParseError(f"'{entered}' is a gauge pressure",
                              f"a {kind.replace('_', ' ')} cannot be gauge; write it as a plain difference, for example '0.3 bar'")
+    if unit_text in _STANDARD_FLOW:
+        if kind != "standard_volume_flow":
+            raise UnitParseError(f"'{entered}' is a volume flow at standard conditions",
+                                 "give it as standard_volume_flow, with standard_pressure and standard_temperature "
+                                 "stating the reference conditions, or give the actual volume flow (m3/h, acfm)")
+        factor, unit_text = _STANDARD_FLOW[unit_text]
+        num *= factor
     si_unit = DIMENSIONS[kind]
     if kind in ("temperature",):
         return _parse_temperature(num, unit_text, entered)

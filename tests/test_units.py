@@ -78,3 +78,18 @@ def test_display_conversions():
     v, u = units.display(10.0, "K", "US", difference=True)
     assert v == pytest.approx(18.0, rel=1e-12) and u == "°R"
     assert math.isclose(units.display(1000.0, "J", "SI")[0], 1.0)
+
+
+def test_standard_volume_flow_units():
+    # 1 ft = 0.3048 m exactly (NIST SP 811); Nm3 and scf are volumes at stated reference conditions
+    assert parse_quantity("60000 Nm3/h", "standard_volume_flow").si == pytest.approx(60000 / 3600, rel=1e-14)
+    assert parse_quantity("2 MMSCFD", "standard_volume_flow").si == pytest.approx(2e6 * 0.3048 ** 3 / 86400, rel=1e-14)
+    assert parse_quantity("500 scfm", "standard_volume_flow").si == pytest.approx(500 * 0.3048 ** 3 / 60, rel=1e-14)
+    with pytest.raises(UnitParseError, match="standard conditions"):
+        parse_quantity("1000 Nm3/h", "volume_flow")       # an actual volume flow cannot be in Nm3/h
+
+
+def test_kgf_per_cm2_gauge():
+    # 1 kgf/cm2 = 98 066.5 Pa exactly (standard gravity, CGPM 1901; NIST SP 811)
+    p = parse_quantity("10 kgf/cm2g", "pressure", atmosphere=101325.0)
+    assert p.gauge and p.si == pytest.approx(980665.0 + 101325.0, rel=1e-14)
