@@ -60,6 +60,10 @@ def _check(args) -> int:
         except JobError as exc:
             _print_job_error(exc)
             worst = EXIT_BAD_INPUT
+        except Exception:  # an internal error: one line, never a traceback
+            print(f"error: {path}: internal error in calcdoc {__version__}; please report it with the job file.",
+                  file=sys.stderr)
+            worst = max(worst, EXIT_INTERNAL)
     return worst
 
 

@@ -159,8 +159,13 @@ class RealGas(Gas):
         self.Tmax = self.AS.Tmax()
         self.pmax = self.AS.pmax()
         self.pure = not mixture
-        self.Tc = self.AS.T_critical()
-        self.Pc = self.AS.p_critical()
+        try:
+            self.Tc = self.AS.T_critical()
+            self.Pc = self.AS.p_critical()
+        except ValueError:  # a mixture may have several critical points, or none CoolProp can find
+            if not mixture:
+                raise
+            self.Tc = self.Pc = math.nan
         self.flashes = 0
 
     def describe(self) -> str:
