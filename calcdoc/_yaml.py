@@ -43,7 +43,7 @@ class Node:
 def decode(data: bytes, name: str) -> str:
     """The job file's text; refuse files that are too big or not UTF-8."""
     if len(data) > MAX_BYTES:
-        raise JobError([Problem(name, 0, 0, "", f"the file is {len(data):,} bytes",
+        raise JobError([Problem(name, 0, 0, "", f"the file is larger than {MAX_BYTES:,} bytes",
                                 f"a job file is at most {MAX_BYTES:,} bytes; split the work into several jobs")])
     try:
         text = data.decode("utf-8")

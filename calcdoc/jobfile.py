@@ -14,7 +14,7 @@ from pathlib import Path
 from typing import Any
 
 from . import units
-from ._yaml import Node, decode, load as _load_yaml
+from ._yaml import MAX_BYTES as _MAX_BYTES, Node, decode, load as _load_yaml
 from .errors import JobError, Problem
 
 __all__ = ["CLOSED_PROCESSES", "FLOW_PROCESSES", "Input", "Job", "LegSpec", "load", "loads"]
@@ -144,7 +144,8 @@ def load(path: str | Path) -> Job:
     """Read and validate a job file."""
     p = Path(path)
     try:
-        data = p.read_bytes()
+        with p.open("rb") as fh:
+            data = fh.read(_MAX_BYTES + 1)   # never read more than a job file may hold
     except FileNotFoundError:
         raise JobError([Problem(str(path), 0, 0, "", "no such file", "give the path of a job file (.yaml)")]) from None
     except IsADirectoryError:
