@@ -66,6 +66,14 @@ def load(text: str, name: str) -> Node:
         root = yaml.compose(text, Loader=yaml.SafeLoader)
     except yaml.MarkedYAMLError as exc:
         raise JobError([_syntax_problem(exc, name)]) from None
+    except yaml.reader.ReaderError as exc:   # a control character YAML does not allow in its text
+        pos = exc.position
+        line = text.count("\n", 0, pos) + 1
+        col = pos - (text.rfind("\n", 0, pos) + 1) + 1
+        char = exc.character if isinstance(exc.character, str) else chr(exc.character)
+        raise JobError([Problem(name, line, col, "", f"the file holds the control character U+{ord(char):04X}, "
+                                "which YAML does not allow",
+                                "remove it; save the job file as plain UTF-8 text")]) from None
     except yaml.YAMLError as exc:
         raise JobError([Problem(name, 0, 0, "", f"YAML error: {exc}", "write the job file as YAML")]) from None
     except RecursionError:  # a backstop: _check_depth refuses deep nesting before the composer recurses

@@ -9,7 +9,7 @@ import os
 
 from hypothesis import HealthCheck, settings
 
-settings.register_profile("ci", max_examples=300, deadline=None, derandomize=True, print_blob=True,
+settings.register_profile("ci", max_examples=600, deadline=None, derandomize=True, print_blob=True,
                           suppress_health_check=[HealthCheck.too_slow])
 settings.register_profile("long", max_examples=5000, deadline=None, print_blob=True,
                           suppress_health_check=[HealthCheck.too_slow])
