@@ -141,3 +141,13 @@ def test_very_deep_nesting_is_refused_before_the_parser_recurses(tmp_path, capsy
     assert cli.main(["check", str(deep)]) == 2
     err = capsys.readouterr().err
     assert f"{deep}:2:" in err and "nested more than 40 levels" in err
+
+
+def test_gauge_spellings_engineers_write_are_read_as_gauge():
+    from calcdoc.units import parse_quantity
+
+    atm = 100_000.0
+    for text in ("7 barg", "7 bar g", "7 bar(g)", "7 bar gauge"):
+        assert parse_quantity(text, "pressure", atmosphere=atm).si == pytest.approx(800_000.0)  # 7 bar = 700 kPa (SI definition of the bar)
+        assert parse_quantity(text, "pressure", atmosphere=atm).gauge
+    assert not parse_quantity("7 bara", "pressure").gauge
