@@ -152,8 +152,10 @@ def _check_invariants(res) -> None:
             assert q["dS"].value == pytest.approx(0.0, abs=1e-4 * m)
         else:
             ref = _boundary_work(res, leg)
-            # across the saturation dome P(v) has kinks and the equilibrium flash is less exact: 1e-4 there
-            rel = 1e-4 if any(st_.phase == "two-phase" for st_ in leg.path) else 2e-6
+            # across the saturation dome P(v) has kinks and on the liquid side it is very steep, so the
+            # reference integral itself is less exact there (calcdoc warns about such paths): 1e-3 there
+            wet = any(st_.phase in ("two-phase", "liquid", "supercritical liquid") for st_ in leg.path)
+            rel = 1e-3 if wet else 2e-6
             assert W == pytest.approx(ref, rel=rel, abs=1e-6 * max(1.0, abs(ref))), leg.process
 
 
