@@ -38,13 +38,13 @@ def expand(paths: list[str]) -> tuple[list[str], list[str]]:
     return jobs, problems
 
 
-def _one(path: str, opts: dict) -> Outcome:
+def _one(path: str, opts: dict, taken: dict | None = None) -> Outcome:
     """Run one job in this process, capturing what it prints (the worker of the pool)."""
     import argparse
 
     from .cli import _run_one
 
-    args = argparse.Namespace(**opts, quiet=True)
+    args = argparse.Namespace(**opts, quiet=True, taken=taken)
     info: dict = {}
     err, out = io.StringIO(), io.StringIO()
     try:
@@ -55,6 +55,13 @@ def _one(path: str, opts: dict) -> Outcome:
     return Outcome(path, code, err.getvalue(), info)
 
 
+def _group(paths: list[str], opts: dict) -> list[Outcome]:
+    """Jobs whose outputs have the same names, one after another in file order: the first that writes
+    takes the names, the others are refused rather than overwrite its report."""
+    taken: dict[str, str] = {}
+    return [_one(p, opts, taken) for p in paths]
+
+
 def _progress(done: int, total: int, stream) -> None:
     width = 30
     filled = int(width * done / total)
@@ -62,13 +69,16 @@ def _progress(done: int, total: int, stream) -> None:
     stream.flush()
 
 
-def run_batch(paths: list[str], opts: dict, quiet: bool = False, workers: int | None = None) -> int:
-    """Run the jobs in parallel; print their errors, then a summary table. Returns the worst exit code."""
+def run_batch(paths: list[str], opts: dict, quiet: bool = False, workers: int | None = None,
+              groups: list[list[int]] | None = None) -> int:
+    """Run the jobs in parallel; print their errors, then a summary table. Returns the worst exit code.
+    ``groups`` (indices into paths) run in one worker each, in order; by default every job alone."""
     from concurrent.futures import ProcessPoolExecutor, as_completed
     from concurrent.futures.process import BrokenProcessPool
 
     total = len(paths)
-    workers = max(1, min(total, workers or os.cpu_count() or 1))
+    groups = groups or [[k] for k in range(total)]
+    workers = max(1, min(len(groups), workers or os.cpu_count() or 1))
     bar = sys.stderr.isatty() and not quiet
     outcomes: dict[int, Outcome] = {}
     retry: list[int] = []
@@ -77,15 +87,16 @@ def run_batch(paths: list[str], opts: dict, quiet: bool = False, workers: int | 
         _progress(0, total, sys.stderr)
     try:
         with ProcessPoolExecutor(max_workers=workers) as pool:
-            futures = {pool.submit(_one, p, opts): k for k, p in enumerate(paths)}
+            futures = {pool.submit(_group, [paths[k] for k in g], opts): g for g in groups}
             for fut in as_completed(futures):
-                k = futures[fut]
+                g = futures[fut]
                 try:
-                    outcomes[k] = fut.result()
+                    for k, outcome in zip(g, fut.result()):
+                        outcomes[k] = outcome
                 except BrokenProcessPool:
-                    retry.append(k)
+                    retry.extend(g)
                     continue
-                done += 1
+                done += len(g)
                 if bar:
                     _progress(done, total, sys.stderr)
         # a job that killed its worker process took the pool down: run the unfinished ones again,

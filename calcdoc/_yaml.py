@@ -43,7 +43,7 @@ class Node:
 def decode(data: bytes, name: str) -> str:
     """The job file's text; refuse files that are too big or not UTF-8."""
     if len(data) > MAX_BYTES:
-        raise JobError([Problem(name, 0, 0, "", f"the file is {len(data):,} bytes",
+        raise JobError([Problem(name, 0, 0, "", f"the file is larger than {MAX_BYTES:,} bytes",
                                 f"a job file is at most {MAX_BYTES:,} bytes; split the work into several jobs")])
     try:
         text = data.decode("utf-8")
@@ -62,17 +62,23 @@ def load(text: str, name: str) -> Node:
     import yaml
 
     try:
+        _check_depth(text, name)
         root = yaml.compose(text, Loader=yaml.SafeLoader)
     except yaml.MarkedYAMLError as exc:
-        mark = exc.problem_mark or exc.context_mark
-        line, col = (mark.line + 1, mark.column + 1) if mark else (0, 0)
-        what = exc.problem or "invalid YAML"
-        if exc.context:
-            what = f"{exc.context}, {what}"
-        raise JobError([Problem(name, line, col, "", f"YAML syntax error: {what}",
-                                "check indentation (spaces, not tabs), colons after keys and matching quotes")]) from None
+        raise JobError([_syntax_problem(exc, name)]) from None
+    except yaml.reader.ReaderError as exc:   # a control character YAML does not allow in its text
+        pos = exc.position
+        line = text.count("\n", 0, pos) + 1
+        col = pos - (text.rfind("\n", 0, pos) + 1) + 1
+        char = exc.character if isinstance(exc.character, str) else chr(exc.character)
+        raise JobError([Problem(name, line, col, "", f"the file holds the control character U+{ord(char):04X}, "
+                                "which YAML does not allow",
+                                "remove it; save the job file as plain UTF-8 text")]) from None
     except yaml.YAMLError as exc:
         raise JobError([Problem(name, 0, 0, "", f"YAML error: {exc}", "write the job file as YAML")]) from None
+    except RecursionError:  # a backstop: _check_depth refuses deep nesting before the composer recurses
+        raise JobError([Problem(name, 0, 0, "", "values are nested too deeply to read",
+                                "a job file is a few levels deep (legs → end → pressure)")]) from None
     if root is None:
         raise JobError([Problem(name, 1, 1, "", "the file is empty",
                                 "start from one of the example jobs (calcdoc new writes a starter job)")])
@@ -85,6 +91,64 @@ def load(text: str, name: str) -> Node:
 
 
 _KIND_NAMES = {"scalar": "single value", "map": "mapping", "seq": "list"}
+
+#: The only tags a job file may carry (explicitly or as resolved by YAML): plain data.
+_PLAIN_TAGS = frozenset("tag:yaml.org,2002:" + t for t in ("str", "int", "float", "bool", "null", "timestamp",
+                                                            "seq", "map"))
+_CONTEXT_AT_FAULT = ("while scanning a simple key", "while parsing a flow mapping", "while parsing a flow sequence",
+                     "while scanning a quoted scalar")
+
+
+def _syntax_problem(exc, name: str) -> Problem:
+    """A YAML syntax error as a Problem at the place to fix, in words an engineer can act on.
+
+    PyYAML gives the place it noticed the error (problem mark) and the construct it was reading
+    (context mark). For an unclosed bracket or quote and a key without its colon, the construct's
+    start is where the fix goes; for a bad indent, the place noticed is.
+    """
+    problem = exc.problem or "invalid YAML"
+    mark = exc.problem_mark
+    ctx = exc.context_mark
+    at_context = bool(ctx and exc.context in _CONTEXT_AT_FAULT)
+    if at_context or mark is None:
+        mark = ctx or mark
+    line, col = (mark.line + 1, mark.column + 1) if mark else (0, 0)
+    what = problem
+    if exc.context:
+        what = f"{exc.context}, {problem}"
+    if at_context and exc.problem_mark is not None and exc.problem_mark.line != ctx.line:
+        what += f" (noticed at line {exc.problem_mark.line + 1}, column {exc.problem_mark.column + 1})"
+    valid = "check indentation (spaces, not tabs), colons after keys and matching quotes and brackets"
+    if "'\\t'" in problem or "\t" in problem:
+        what = "a tab character where YAML expects spaces"
+        valid = "indent with spaces only (YAML does not allow tabs for indentation)"
+    elif exc.context == "while scanning a simple key":
+        valid = "a key needs a colon and a space after it, for example 'temperature: 20 degC'"
+    elif exc.context in ("while parsing a flow mapping", "while parsing a flow sequence"):
+        valid = "close the '{' with '}' (or the '[' with ']') on the same item, and separate entries with commas"
+    elif "expected a single document" in what:
+        valid = "a job file holds one job; remove the '---' line and what follows, or split the file"
+    return Problem(name, line, col, "", f"YAML syntax error: {what}", valid)
+
+
+def _check_depth(text: str, name: str) -> None:
+    """Refuse nesting deeper than MAX_DEPTH from the token stream (no recursion), with its place."""
+    import yaml
+
+    depth = 0
+    opens = (yaml.BlockMappingStartToken, yaml.BlockSequenceStartToken, yaml.FlowMappingStartToken,
+             yaml.FlowSequenceStartToken)
+    closes = (yaml.BlockEndToken, yaml.FlowMappingEndToken, yaml.FlowSequenceEndToken)
+    for tok in yaml.scan(text, Loader=yaml.SafeLoader):
+        if isinstance(tok, opens):
+            depth += 1
+            if depth > MAX_DEPTH:
+                m = tok.start_mark
+                raise JobError([Problem(name, m.line + 1, m.column + 1, "",
+                                        f"values are nested more than {MAX_DEPTH} levels deep",
+                                        "a job file is a few levels deep (legs → end → pressure)")])
+        elif isinstance(tok, closes):
+            depth -= 1
 
 
 class _Builder:
@@ -110,6 +174,10 @@ class _Builder:
             self.fail(node, path, f"values are nested more than {MAX_DEPTH} levels deep",
                       "a job file is a few levels deep (legs → end → pressure)")
         line, col = node.start_mark.line + 1, node.start_mark.column + 1
+        if node.tag not in _PLAIN_TAGS:
+            tag = node.tag.replace("tag:yaml.org,2002:", "!!")
+            self.fail(node, path, f"the YAML tag '{tag}' asks for an object to be built; calcdoc reads plain data only",
+                      "remove the tag and write plain values (numbers, text, dates, lists and mappings)")
         if id(node) in self.active:
             self.fail(node, path, "an alias refers to the value that contains it (a recursive anchor)",
                       "remove the recursive alias")

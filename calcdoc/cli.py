@@ -126,6 +126,10 @@ def _check(args) -> int:
         except JobError as exc:
             _print_job_error(exc)
             worst = EXIT_BAD_INPUT
+        except Exception:  # an internal error: one line, never a traceback
+            print(f"error: {path}: internal error in calcdoc {__version__}; please report it with the job file.",
+                  file=sys.stderr)
+            worst = max(worst, EXIT_INTERNAL)
     return worst
 
 
@@ -162,39 +166,27 @@ def _run(args) -> int:
         return EXIT_BAD_INPUT
     if len(jobs) == 1:
         return max(_run_one(jobs[0], args), EXIT_BAD_INPUT if problems else EXIT_OK)
-    jobs, clashes = _distinct_outputs(jobs)
-    for msg in clashes:
-        print(f"error: {msg}", file=sys.stderr)
-    if not jobs:
-        return EXIT_BAD_INPUT
     opts = {"out": args.out, "no_pdf": args.no_pdf, "debug": args.debug, "changes_since": None}
-    return max(run_batch(jobs, opts, quiet=args.quiet, workers=args.workers or None),
-               EXIT_BAD_INPUT if problems or clashes else EXIT_OK)
+    return max(run_batch(jobs, opts, quiet=args.quiet, workers=args.workers or None, groups=_output_groups(jobs)),
+               EXIT_BAD_INPUT if problems else EXIT_OK)
 
 
-def _distinct_outputs(paths: list[str]) -> tuple[list[str], list[str]]:
-    """Refuse a job whose calc number and revision give the same output names as an earlier job of the
-    batch (its report would overwrite the other's). Jobs that do not load are left to the batch to report."""
-    from .errors import JobError
+def _output_groups(paths: list[str]) -> list[list[int]]:
+    """Jobs of a batch grouped by the output names their calc number and revision give: a group runs in
+    one worker, in file order, and only its first job that writes may write (see ``_run_one``), so that
+    no job of the batch overwrites another's report. Jobs that do not load are groups of their own."""
     from .jobfile import load
     from .report.render import safe_stem
 
-    seen: dict[str, str] = {}
-    keep, clashes = [], []
-    for path in paths:
+    groups: dict[str, list[int]] = {}
+    for k, path in enumerate(paths):
         try:
             t = load(path).calc
+            stem = safe_stem(t.number, t.revision)
         except JobError:
-            keep.append(path)
-            continue
-        stem = safe_stem(t.number, t.revision)
-        if stem in seen:
-            clashes.append(f"{path}: calc {t.number} rev {t.revision} is also {seen[stem]}; its report would "
-                           "overwrite that one's. Give each job its own calc number or revision; not run")
-            continue
-        seen[stem] = path
-        keep.append(path)
-    return keep, clashes
+            stem = f"\0{k}"
+        groups.setdefault(stem, []).append(k)
+    return list(groups.values())
 
 
 def _run_one(path: str, args, info: dict | None = None) -> int:
@@ -210,8 +202,16 @@ def _run_one(path: str, args, info: dict | None = None) -> int:
 
             old = load(args.changes_since)
             results = with_changes(results, old, run(old))
-        from .output import write
+        from .output import output_paths, write
 
+        taken = getattr(args, "taken", None)       # output names written by earlier jobs of this batch
+        if taken is not None:
+            stem = output_paths(results, args.out)[0].stem
+            if stem in taken:
+                raise CalcdocError(f"calc {job.calc.number} rev {job.calc.revision} is also {taken[stem]}, whose "
+                                   "report this batch has written; give each job its own calc number or revision "
+                                   "(nothing written for this job)")
+            taken[stem] = path
         written = write(results, args.out, pdf=not args.no_pdf)
     except JobError as exc:
         _print_job_error(exc)

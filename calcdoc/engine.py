@@ -38,6 +38,11 @@ def make_gas(job: Job) -> tuple[Gas, list[Calc]]:
             return gas, []
         return _ideal_gas(job)
     except PhysicsError as exc:
+        from .diagnose import fluid_problems
+
+        problems = fluid_problems(job)
+        if problems:
+            raise JobError(problems) from None
         path = "gas.fluid" if spec.fluid else "gas.mixture"
         raise JobError([job.problem(path, str(exc), _fluid_hint(spec))]) from None
 
@@ -131,8 +136,9 @@ def _start_state(job: Job, gas: Gas) -> State:
     try:
         return gas.state_PT(P, T)
     except PhysicsError as exc:
-        raise JobError([job.problem("start", f"the start state cannot be computed: {exc}",
-                                    "check the start pressure and temperature against the fluid's range")]) from None
+        from .diagnose import start_state_problem
+
+        raise JobError([start_state_problem(job, gas, str(exc))]) from None
 
 
 def _targets(job: Job, leg: LegSpec, s1: State, m: float) -> list[Target]:
@@ -208,12 +214,16 @@ def compute(job: Job) -> Results:
             res = closed_leg(gas, leg.name, leg.process, i, s, m, _targets(job, leg, s, m),
                              leg.n.si if leg.n is not None else None)
         except PhysicsError as exc:
-            raise JobError([job.problem(f"{leg.path}.end", f"leg '{leg.name}': {exc}",
+            where = f"{leg.path}.end" + (f".{next(iter(leg.end))}" if len(leg.end) == 1 else "")
+            raise JobError([job.problem(where, f"leg '{leg.name}': {exc}",
                                         "check the end target and the process against the start of this leg")]) from None
         legs.append(res)
         warnings += _phase_warnings(gas, f"Leg '{leg.name}'", list(res.path))
         s = res.end
         records.append(StateRecord(i + 1, str(i + 1), s, V=m * s.v))
+    from .diagnose import ideal_condensation_warnings
+
+    warnings += ideal_condensation_warnings(job, gas, legs, s1)
     basis = _basis(job, gas)
     return Results(job, gas, "closed", mass, {}, tuple(records), tuple(legs), tuple(start_calcs), (),
                    tuple(warnings), basis, software_versions(), saturation=saturation_near(gas, legs))

@@ -81,7 +81,9 @@ class IdealGas(Gas):
     eos_method = "eos.ideal"
 
     def __init__(self, name: str, k: float, M: float):
-        if not (1.0 < k <= 5.0 / 3.0 + 1e-9):
+        # 5/3 with room for rounding: a monatomic fluid's k from its equation of state lands a few parts
+        # in 1e7 above 5/3 when the EOS and calcdoc differ in the last digits of the gas constant
+        if not (1.0 < k <= 5.0 / 3.0 * (1.0 + 1e-6)):
             raise PhysicsError(f"heat capacity ratio k = {k} is outside (1, 5/3]")
         self.name = name
         self.k = k

@@ -14,7 +14,7 @@ from pathlib import Path
 from typing import Any
 
 from . import units
-from ._yaml import Node, decode, load as _load_yaml
+from ._yaml import MAX_BYTES as _MAX_BYTES, Node, decode, load as _load_yaml
 from .errors import JobError, Problem
 
 __all__ = ["CLOSED_PROCESSES", "FLOW_PROCESSES", "Input", "Job", "LegSpec", "load", "loads"]
@@ -144,7 +144,8 @@ def load(path: str | Path) -> Job:
     """Read and validate a job file."""
     p = Path(path)
     try:
-        data = p.read_bytes()
+        with p.open("rb") as fh:
+            data = fh.read(_MAX_BYTES + 1)   # never read more than a job file may hold
     except FileNotFoundError:
         raise JobError([Problem(str(path), 0, 0, "", "no such file", "give the path of a job file (.yaml)")]) from None
     except IsADirectoryError:
@@ -199,14 +200,18 @@ class _Validator:
                      f"valid keys here: {', '.join(allowed)}")
             return {}
         self.where[node.path] = node.where
+        suggested: set[str] = set()
         for key, child in node.value.items():
             self.where[child.path] = child.where
             if key not in allowed:
                 close = difflib.get_close_matches(key, allowed, n=1, cutoff=0.6)
                 hint = f"did you mean '{close[0]}'? " if close else ""
+                if close and close[0] in required and close[0] not in node.value:
+                    suggested.add(close[0])
+                    hint = f"did you mean '{close[0]}' (a required key)? "
                 self.add(child, f"unknown key '{key}'", f"{hint}valid keys here: {', '.join(allowed)}")
         for key in required:
-            if key not in node.value:
+            if key not in node.value and key not in suggested:
                 self.add(node, f"missing required key '{key}'", _REQUIRED_HINT.get(key, ""),
                          path=f"{node.path}.{key}" if node.path else key)
         return {k: c for k, c in node.value.items() if k in allowed}
@@ -324,12 +329,16 @@ class _Validator:
         history = []
         for item in self.seq(m.get("history")):
             h = self.mapping(item, ("revision", "date", "description"), required=("revision", "date", "description"))
+            hd = h.get("date")
+            if hd is not None and not isinstance(hd.value, _dt.date) and not (isinstance(hd.value, str) and _iso_date(hd.value)):
+                self.add(hd, f"expected a date, found {_describe(hd)}", "write the date as YYYY-MM-DD (ISO 8601)")
             history.append((self.text(h.get("revision")), self.text(h.get("date")), self.text(h.get("description"))))
         drawings = tuple(self.text(d) for d in self.seq(m.get("drawings")))
         if "date" in m:
             d = m["date"]
-            if not isinstance(d.value, (_dt.date, str)) or (isinstance(d.value, str) and not d.value.strip()):
-                self.add(d, f"expected a date, found {_describe(d)}", "write the date as YYYY-MM-DD")
+            if not isinstance(d.value, (_dt.date, str)) or (isinstance(d.value, str) and not _iso_date(d.value)):
+                self.add(d, f"expected a date, found {_describe(d)}", "write the date as YYYY-MM-DD (ISO 8601), "
+                         "for example 2026-11-28")
         if not m or any(k not in m for k in ("number", "title", "revision", "date")):
             return None
         return TitleBlock(number=self.text(m["number"]), title=self.text(m["title"]),
@@ -378,6 +387,9 @@ class _Validator:
             if mm.kind != "map" or not mm.value:
                 self.add(mm, f"expected component: mole fraction pairs, found {_describe(mm)}",
                          "write for example mixture: {Methane: 0.9, Ethane: 0.1}")
+            elif _looks_like_percent(mm):
+                self.add(mm, "the mole fractions sum to about 100: they look like percentages",
+                         "write mole fractions that sum to 1 (for example 92 % → 0.92)")
             else:
                 for comp, xnode in mm.value.items():
                     self.where[xnode.path] = xnode.where
@@ -408,7 +420,7 @@ class _Validator:
         if model == "ideal":
             if molar_mass and R:
                 self.add(node, "both molar_mass and R are given", "give one of them")
-            if not fluid and "mixture" not in m and (k is None or (molar_mass is None and R is None)):
+            if not fluid and "mixture" not in m and (("k" not in m) or ("molar_mass" not in m and "R" not in m)):
                 self.add(node, "an ideal gas without a fluid needs k and molar_mass (or R)",
                          "add k: 1.4 and molar_mass: 28.97 g/mol, or name the fluid to take them from")
         if model is None:
@@ -477,7 +489,7 @@ class _Validator:
         n = None
         if "n" in m:
             if process not in (None, "polytropic"):
-                self.add(m["n"], f"n applies to polytropic legs, not to a {process} leg", "remove n")
+                self.add(m["n"], f"n applies to polytropic legs, not to {_a(process)} {process} leg", "remove n")
             else:
                 nv = self.number(m["n"], -50.0, 1e6, what="a polytropic exponent n")
                 if nv is not None:
@@ -492,8 +504,10 @@ class _Validator:
                 if q is not None:
                     end[key] = q
             given = list(em)
-            if em is not None and m["end"].kind == "map":
+            if em is not None and m["end"].kind == "map" and (given or not m["end"].value):
                 self._check_targets(m["end"], process, given, n is not None or "n" in m, flow)
+                if not flow:
+                    self._check_closed_targets(node, m["end"], process, given, "n" in m)
         options = self._leg_options(m, process, flow)
         if not name or process is None or "end" not in m or len(end) != len(m["end"].value if m["end"].kind == "map" else ()):
             return None
@@ -520,6 +534,24 @@ class _Validator:
         why = ("a polytropic leg with n takes one end target; leave n out to derive it from a measured end pressure "
                "and temperature or volume") if process == "polytropic" else "give exactly one end target"
         self.add(end_node, f"{len(given)} end targets are given ({', '.join(given)})", why)
+
+    def _check_closed_targets(self, leg: Node, end_node: Node, process: str | None, given: list[str],
+                              has_n: bool) -> None:
+        """Targets a closed-system process can reach: the property it holds constant is not one of them,
+        and a polytropic leg needs n or a measured end state to derive n from."""
+        held = _HELD_CONSTANT.get(process or "")
+        if held:
+            prop, keys = held
+            for key in given:
+                if key in keys:
+                    allowed = [t for t in CLOSED_TARGETS if t not in keys]
+                    self.add(end_node.value[key], f"{_a(process)} {process} leg keeps the {prop} constant, so it cannot "
+                             f"end at a {key.replace('_', ' ')}", f"give one of: {', '.join(allowed)}; or choose the "
+                             "process that reaches this target")
+        if process == "polytropic" and not has_n and len(given) == 1:
+            self.add(leg, "a polytropic leg needs its exponent n, or a measured end state to derive n from",
+                     "add n (for example n: 1.3), or give the measured end pressure together with the end "
+                     "temperature or volume", path=f"{leg.path}.n")
 
     def _leg_options(self, m: dict[str, Node], process: str | None, flow: bool) -> dict[str, Any]:
         opts: dict[str, Any] = {}
@@ -553,6 +585,30 @@ _REQUIRED_HINT = {
     "date": "the date of this revision, YYYY-MM-DD",
     "model": "model: real (CoolProp) or model: ideal",
 }
+
+
+_HELD_CONSTANT = {"isochoric": ("volume", ("volume", "volume_ratio")),
+                  "isothermal": ("temperature", ("temperature",)),
+                  "isobaric": ("pressure", ("pressure", "pressure_ratio"))}
+
+
+def _a(word: str | None) -> str:
+    return "an" if (word or "x")[0] in "aeiou" else "a"
+
+
+def _iso_date(text: str) -> bool:
+    try:
+        _dt.date.fromisoformat(text.strip())
+    except ValueError:
+        return False
+    return len(text.strip()) == 10
+
+
+def _looks_like_percent(mm: Node) -> bool:
+    vals = [c.value for c in mm.value.values()]
+    if not all(isinstance(v, (int, float)) and not isinstance(v, bool) for v in vals):
+        return False
+    return any(v > 1.0 for v in vals) and abs(sum(vals) - 100.0) <= 0.5
 
 
 def _describe(node: Node) -> str:

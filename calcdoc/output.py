@@ -55,9 +55,37 @@ def write(results, out_dir: str | os.PathLike, pdf: bool = True) -> list[Path]:
         from .report import render_pdf
 
         pdf_bytes = render_pdf(results, text)
-    write_atomic(json_path, text.encode("utf-8"))
-    written = [json_path]
-    if pdf_bytes is not None:
-        write_atomic(pdf_path, pdf_bytes)
-        written.append(pdf_path)
-    return written
+    targets = [(json_path, text.encode("utf-8"))] + ([(pdf_path, pdf_bytes)] if pdf_bytes is not None else [])
+    return write_all(targets)
+
+
+def write_all(targets: list[tuple[Path, bytes]]) -> list[Path]:
+    """Write every file to a temporary file beside its target first, then rename them all, so a failure
+    while writing (disk full, permissions) leaves every earlier file as it was and no partial file."""
+    staged: list[tuple[str, Path]] = []
+    try:
+        for target, data in targets:
+            fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".part", dir=str(target.parent))
+            staged.append((tmp, target))
+            with os.fdopen(fd, "wb") as fh:
+                fh.write(data)
+                fh.flush()
+                os.fsync(fh.fileno())
+            os.chmod(tmp, 0o644)
+        for tmp, target in staged:
+            os.replace(tmp, target)
+    except OSError as exc:
+        _discard(staged)
+        raise CalcdocError(f"cannot write {target}: {exc.strerror or exc}; earlier outputs are unchanged") from None
+    except BaseException:
+        _discard(staged)
+        raise
+    return [target for _, target in staged]
+
+
+def _discard(staged: list[tuple[str, Path]]) -> None:
+    for tmp, _ in staged:
+        try:
+            os.unlink(tmp)
+        except OSError:
+            pass

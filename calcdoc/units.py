@@ -55,7 +55,7 @@ DIMENSIONS: dict[str, str] = {
 }
 
 # Gauge markers: a pressure unit followed by "g" (barg, psig, kPag, MPag) or "(g)"/" gauge".
-_GAUGE = re.compile(r"^(?P<unit>[A-Za-z/0-9]+?)(?:g|\s*\(g\)|\s+gauge)$")
+_GAUGE = re.compile(r"^(?P<unit>[A-Za-z/0-9]+?)(?:g|\s*\(g\)|\s+g(?:auge)?)$")
 _ABS = re.compile(r"^(?P<unit>[A-Za-z/0-9]+?)(?:a|\s*\(a\)|\s+abs(?:olute)?)$")
 _PRESSURE_UNITS = {"bar", "mbar", "psi", "kPa", "MPa", "Pa", "kpa", "mpa", "atm", "inHg", "mmHg", "kgf/cm2", "kg/cm2"}
 
@@ -163,6 +163,9 @@ def standard_atmosphere_pressure(z: float) -> float:
 
 def _split(text: str, kind: str) -> tuple[float, str]:
     m = _NUMBER.match(text)
+    if m and re.match(r"^,\d", m.group("unit")):
+        raise UnitParseError(f"'{text}' has a decimal comma",
+                             f"write the decimal point, for example '{m.group('num')}.{m.group('unit')[1:]}'")
     if not m:
         raise UnitParseError(f"'{text}' is not a number followed by a unit",
                              f"write a {kind} as a number and a unit, for example {_EXAMPLES.get(kind, '1 Pa')}")
@@ -267,7 +270,34 @@ def _unit_problem(unit_text: str, exc: Exception, kind: str) -> str:
     name = type(exc).__name__
     if name == "DimensionalityError":
         return f"'{unit_text}' is not a unit of {kind.replace('_', ' ')}"
-    return f"'{unit_text}' is not a unit calcdoc knows"
+    close = suggest_unit(unit_text, kind)
+    return f"'{unit_text}' is not a unit calcdoc knows" + (f" (did you mean '{close}'?)" if close else "")
+
+
+#: Spellings offered as "did you mean" for a unit calcdoc does not know, by kind.
+_SPELLINGS = {
+    "pressure": ("bara", "barg", "bar", "mbar", "psia", "psig", "psi", "kPa", "kPag", "MPa", "MPag", "Pa", "atm"),
+    "temperature": ("degC", "degF", "K", "degR"),
+    "volume": ("m3", "L", "ft3", "cm3", "mm3", "in3"),
+    "mass": ("kg", "g", "lb", "t"),
+    "length": ("m", "ft", "km"),
+    "molar_mass": ("g/mol", "kg/kmol"),
+    "mass_flow": ("kg/s", "kg/h", "lb/h"),
+    "volume_flow": ("m3/h", "m3/s", "m3/min", "ft3/min"),
+}
+
+
+def suggest_unit(unit_text: str, kind: str) -> str | None:
+    """The spelling calcdoc knows closest to ``unit_text`` for a quantity of ``kind``, or None."""
+    import difflib
+
+    known = _SPELLINGS.get(kind, ())
+    squeezed = unit_text.replace(" ", "").replace("°", "deg").lower()
+    by_lower = {k.lower(): k for k in known}
+    if squeezed in by_lower:
+        return by_lower[squeezed]
+    close = difflib.get_close_matches(squeezed, list(by_lower), n=1, cutoff=0.6)
+    return by_lower[close[0]] if close else None
 
 
 def _parse_temperature(num: float, unit_text: str, entered: str) -> Parsed:
@@ -280,7 +310,9 @@ def _parse_temperature(num: float, unit_text: str, entered: str) -> Parsed:
         try:
             ureg.Quantity(1.0, unit).to("K")
         except Exception:
-            raise UnitParseError(f"'{entered}': '{unit_text}' is not a unit of temperature",
+            close = suggest_unit(unit_text, "temperature")
+            raise UnitParseError(f"'{entered}': '{unit_text}' is not a unit of temperature"
+                                 + (f" (did you mean '{close}'?)" if close else ""),
                                  "write a temperature such as '25 degC', '77 degF' or '298.15 K'") from None
     ureg = registry()
     T = ureg.Quantity(num, unit).to("K").magnitude  # offset units converted as absolute temperatures

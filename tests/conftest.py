@@ -1,10 +1,22 @@
-"""Shared helpers for the tests: build job files from small dicts."""
+"""Shared helpers for the tests (job files from small dicts or inline YAML) and the hypothesis profiles.
+
+CI (the default profile) runs enough property-based examples to matter and stays within about two
+minutes; CALCDOC_FUZZ=long runs many more (a separate, longer run before a release).
+"""
 from __future__ import annotations
 
+import os
 import textwrap
 
 import pytest
 import yaml
+from hypothesis import HealthCheck, settings
+
+settings.register_profile("ci", max_examples=600, deadline=None, derandomize=True, print_blob=True,
+                          suppress_health_check=[HealthCheck.too_slow])
+settings.register_profile("long", max_examples=5000, deadline=None, print_blob=True,
+                          suppress_health_check=[HealthCheck.too_slow])
+settings.load_profile("long" if os.environ.get("CALCDOC_FUZZ") == "long" else "ci")
 
 TITLE = {"number": "TST-000-C-001", "title": "Test job", "project": "Tests", "revision": "A",
          "date": "2026-11-28"}

@@ -1,0 +1,110 @@
+"""Diagnosis of bad input that only the gas model can see: unknown fluids, states outside the
+equation of state, and condensation an ideal-gas model would hide.
+
+The engine calls these when a gas or a state cannot be made, to turn a library message into a
+Problem that points at the key to fix, in the trade's words. Nothing here computes a result.
+"""
+from __future__ import annotations
+
+import difflib
+
+from .errors import Problem
+
+__all__ = ["fluid_problems", "start_state_problem", "ideal_condensation_warnings"]
+
+_COMMON = "use a CoolProp fluid name such as Nitrogen, Air, CarbonDioxide, Methane, Hydrogen"
+
+
+def _fluid_names() -> dict[str, str]:
+    """Every name CoolProp accepts (fluid names and their aliases) → the fluid's own name."""
+    import CoolProp.CoolProp as CP
+
+    names = CP.get_global_param_string("FluidsList").split(",")
+    out = {nm: nm for nm in names}
+    for nm in names:
+        try:
+            for a in CP.get_fluid_param_string(nm, "aliases").split(","):
+                if a:
+                    out.setdefault(a, nm)
+        except ValueError:
+            continue
+    return out
+
+
+def known_fluid(name: str) -> bool:
+    """True when CoolProp knows ``name`` as a fluid or an alias of one."""
+    import CoolProp.CoolProp as CP
+
+    try:
+        CP.get_fluid_param_string(name, "name")
+    except ValueError:
+        return False
+    return True
+
+
+def fluid_problems(job) -> list[Problem]:
+    """A Problem for each fluid or mixture component CoolProp does not know, at its own key."""
+    spec = job.gas
+    names = [("gas.fluid", spec.fluid)] if spec.fluid else [(f"gas.mixture.{c}", c) for c, _ in spec.mixture]
+    out: list[Problem] = []
+    known = None
+    for path, nm in names:
+        if known_fluid(nm):
+            continue
+        if known is None:
+            known = _fluid_names()
+        close = list(dict.fromkeys(known[c] for c in difflib.get_close_matches(nm, list(known), n=6, cutoff=0.6)))[:3]
+        hint = f"did you mean {' or '.join(repr(c) for c in close)}? " if close else ""
+        what = "mixture component" if path.startswith("gas.mixture") else "fluid"
+        out.append(job.problem(path, f"'{nm}' is not a {what} the equation-of-state library (CoolProp) knows",
+                               hint + _COMMON))
+    return out
+
+
+def start_state_problem(job, gas, message: str) -> Problem:
+    """Where the start state falls outside the gas model: the temperature or pressure at fault."""
+    P, T = job.start.pressure.si, job.start.temperature.si
+    Tmin, Tmax, pmax = (getattr(gas, a, None) for a in ("Tmin", "Tmax", "pmax"))
+    if Tmin is not None and T < Tmin * 0.999:
+        return job.problem("start.temperature", f"{T:.6g} K ({T - 273.15:.6g} °C) is below the lowest temperature of "
+                           f"the equation of state for {gas.name} ({Tmin:.5g} K)",
+                           "check the start temperature and its unit; the gas would be solid or far off its model")
+    if Tmax is not None and T > Tmax:
+        return job.problem("start.temperature", f"{T:.6g} K ({T - 273.15:.6g} °C) is above the highest temperature "
+                           f"of the equation of state for {gas.name} ({Tmax:.5g} K)",
+                           "check the start temperature and its unit (K against degC)")
+    if pmax is not None and P > pmax:
+        return job.problem("start.pressure", f"{P / 1e5:.6g} bar absolute is above the highest pressure of the "
+                           f"equation of state for {gas.name} ({pmax / 1e5:.5g} bar)",
+                           "check the start pressure and its unit")
+    return job.problem("start", f"the start state cannot be computed: {message}",
+                       "check the start pressure and temperature against the fluid's range")
+
+
+def ideal_condensation_warnings(job, gas, legs, start) -> list[str]:
+    """Warnings where an ideal-gas model of a named pure fluid passes below that fluid's dew point.
+
+    The ideal-gas model has no liquid, so it would give numbers for a state that is really a liquid
+    or a wet vapour: a silent wrong number. The fluid's own equation of state tells where it
+    condenses; we warn at the first such state.
+    """
+    spec = job.gas
+    if gas.model != "ideal" or not spec.fluid:
+        return []
+    from .gas import RealGas
+
+    try:
+        real = RealGas(spec.fluid)
+    except Exception:  # the warning is a courtesy; an unknown fluid is reported elsewhere
+        return []
+    if not real.pure:
+        return []
+    checks = [("Start state", [start])] + [(f"Leg '{leg.name}'", list(leg.path)) for leg in legs]
+    for label, states in checks:
+        for s in states:
+            dew = real.dew_temperature(s.P)
+            if dew is not None and s.T < dew:
+                return [f"{label}: at P = {s.P / 1e3:.5g} kPa and T = {s.T - 273.15:.4g} °C real {spec.fluid} would "
+                        f"condense (its saturation temperature there is {dew - 273.15:.4g} °C); the ideal-gas model "
+                        "has no liquid and its numbers are not valid there. Use model: real."]
+    return []
