@@ -233,6 +233,14 @@ def read_options(job: Job) -> tuple[Job, list[LegOptions]]:
     return job, opts
 
 
+def option_problems(job: Job) -> list[Problem]:
+    """Every problem of the steady-flow leg options, found without computing (for ``calcdoc check``)."""
+    r = _Reader(job)
+    for leg in job.legs:
+        r.leg(leg)
+    return r.problems
+
+
 def problem_at(job: Job, inp_or_path, found: str, valid: str = "") -> JobError:
     """A JobError at an input (its line and column) or a key path."""
     if isinstance(inp_or_path, Input):

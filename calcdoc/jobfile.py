@@ -176,6 +176,10 @@ def _check_sections(job: Job) -> None:
     from .sweep import sweep_problems
 
     problems = limit_problems(job) + sweep_problems(job)
+    if job.system == "flow":
+        from ._flowjob import option_problems
+
+        problems += option_problems(job)
     if problems:
         raise JobError(sorted(problems, key=lambda p: (p.line, p.column)))
 
