@@ -199,7 +199,33 @@ class RealGas(Gas):
         return self._update(self._CP.PT_INPUTS, P, T, f"P = {P:.6g} Pa, T = {T:.6g} K")
 
     def state_Pv(self, P, v):
-        return self._update(self._CP.DmassP_INPUTS, 1.0 / v, P, f"P = {P:.6g} Pa, v = {v:.6g} m3/kg")
+        if self.pure:
+            return self._update(self._CP.DmassP_INPUTS, 1.0 / v, P, f"P = {P:.6g} Pa, v = {v:.6g} m3/kg")
+        return self.state_Tv(self._T_of_Pv(P, v), v)
+
+    def _T_of_Pv(self, P: float, v: float) -> float:
+        """Mixtures: CoolProp has no (density, pressure) flash for them, so T is found by Newton's method on
+        P(ρ, T) = P with (density, temperature) flashes and the exact slope (∂P/∂T) at constant ρ."""
+        CP, AS = self._CP, self.AS
+        rho = 1.0 / v
+        T = max(P * v * self.M / R_U, self.Tmin)          # ideal-gas start
+        for _ in range(60):
+            self.flashes += 1
+            try:
+                AS.update(CP.DmassT_INPUTS, rho, T)
+                f = AS.p() - P
+                dfdT = AS.first_partial_deriv(CP.iP, CP.iT, CP.iDmass)
+            except ValueError as exc:
+                raise PhysicsError(f"the equation of state cannot give the state with P = {P:.6g} Pa, "
+                                   f"v = {v:.6g} m3/kg ({_short(exc)})") from None
+            if dfdT <= 0:
+                break
+            step = f / dfdT
+            T = min(max(T - step, 0.5 * T), 2.0 * T)
+            if abs(step) < 1e-11 * T:
+                return T
+        raise PhysicsError(f"no single-phase state of this mixture has P = {P:.6g} Pa and v = {v:.6g} m3/kg "
+                           "(the temperature iteration did not converge; the state may be inside the phase envelope)")
 
     def state_Tv(self, T, v):
         return self._update(self._CP.DmassT_INPUTS, 1.0 / v, T, f"T = {T:.6g} K, v = {v:.6g} m3/kg")

@@ -273,7 +273,8 @@ def _isentropic(gas, name, i, s1, m, targets, n):
     dU = m * (s2.u - s1.u)
     W = Calc("W", -dU, "J", "−{dU}", "work.adiabatic", {"dU": Term("ΔU", dU, "J")})
     Q = Calc("Q", 0.0, "J", "0", "work.adiabatic")
-    path = [gas.state_Ps(P, s1.s) for P in _geom(s1.P, s2.P)[1:-1]] if s2.P != s1.P else []
+    # along v with (density, entropy) flashes: fast for pure fluids and mixtures alike
+    path = [gas.state_vs(v, s1.s) for v in _geom(s1.v, s2.v)[1:-1]] if s2.v != s1.v else []
     return _finish(gas, name, "isentropic", i, s1, s2, m, W, Q, _n_from_states(i, s1, s2), steps,
                    [s1, *path, s2], [])
 

@@ -170,3 +170,17 @@ def test_first_law_closes_on_every_leg(ideal, nitrogen):
             Qv, Wv, dU = q(res, "Q_to_gas"), q(res, "W_by_gas"), q(res, "dU")
             assert Qv - Wv == pytest.approx(dU, abs=1e-9 * max(abs(Qv), abs(Wv), 1.0))   # first law
             assert dU == pytest.approx(0.7 * (res.end.u - s1.u), rel=1e-12)
+
+
+def test_mixture_polytropic_leg_end_state():
+    # CoolProp has no (density, pressure) flash for mixtures: the end state is found by iterating on T;
+    # reference: CoolProp's high-level interface called directly at the end state found
+    import CoolProp.CoolProp as CP
+
+    mix = RealGas(mixture=(("Methane", 0.9), ("Ethane", 0.07), ("Propane", 0.03)))
+    s1 = mix.state_PT(50e5, 300.0)
+    res = closed_leg(mix, "leg", "polytropic", 1, s1, 1.0, [Target("v", s1.v / 2)], 1.25)
+    P2 = 50e5 * 2 ** 1.25                                                            # P v^n = C
+    assert res.end.P == pytest.approx(P2, rel=1e-9)
+    fluid = "HEOS::Methane[0.9]&Ethane[0.07]&Propane[0.03]"
+    assert CP.PropsSI("P", "Dmass", 2 / s1.v, "T", res.end.T, fluid) == pytest.approx(P2, rel=1e-9)
