@@ -203,6 +203,11 @@ def compute(job: Job) -> Results:
         mass = Calc("m", m, "kg", "{V1} / {v1}", "state.mass",
                     {"V1": Term("V_1", V1, "m**3"), "v1": Term("v_1", s1.v, "m**3/kg")})
     start_calcs.append(Calc("v_1", s1.v, "m**3/kg", "v(P_1, T_1)", gas.eos_method))
+    if job.start.mass is not None:
+        start_calcs.append(Calc("V_1", m * s1.v, "m**3", "{m}·{v}", "state.volume",
+                                {"m": Term("m", m, "kg"), "v": Term("v_1", s1.v, "m**3/kg")}))
+    for prop, unit in (("u", "J/kg"), ("h", "J/kg"), ("s", "J/(kg*K)")):
+        start_calcs.append(Calc(f"{prop}_1", getattr(s1, prop), unit, f"{prop}(P_1, T_1)", gas.eos_method))
     warnings: list[str] = []
     legs: list[LegResult] = []
     records = [StateRecord(1, "1", s1, V=m * s1.v)]
@@ -217,6 +222,12 @@ def compute(job: Job) -> Results:
             where = f"{leg.path}.end" + (f".{next(iter(leg.end))}" if len(leg.end) == 1 else "")
             raise JobError([job.problem(where, f"leg '{leg.name}': {exc}",
                                         "check the end target and the process against the start of this leg")]) from None
+        except (OverflowError, ZeroDivisionError):
+            # an exponent or ratio so extreme that the path's numbers leave floating point
+            raise JobError([job.problem(leg.path + (".n" if leg.n is not None else ".end"),
+                                        f"leg '{leg.name}': the path P·Vⁿ = const with these values gives numbers "
+                                        "beyond floating-point range",
+                                        "use a physical exponent (for a fixed volume use process: isochoric)")]) from None
         legs.append(res)
         warnings += _phase_warnings(gas, f"Leg '{leg.name}'", list(res.path))
         s = res.end

@@ -132,12 +132,14 @@ def _differences(i: int, s1: State, s2: State, m: float) -> dict[str, Calc]:
 
 
 def _finish(gas: Gas, name: str, process: str, i: int, s1: State, s2: State, m: float, W: Calc, Q: Calc,
-            n: Calc | None, steps: list[Calc], path: list[State], facts: list[str]) -> LegResult:
+            n: Calc | None, steps: list[Calc], path: list[State], facts: list[str],
+            targets: list[Target] = ()) -> LegResult:
     d = _differences(i, s1, s2, m)
     q = {"W_by_gas": W, "Q_to_gas": Q, "dU": d["dU"], "dH": d["dH"], "dS": d["dS"]}
     if n is not None:
         q["n"] = n
-    calcs = steps + _state_calcs(gas, i + 1, s2, m) + [d["dU"], W, Q, d["dH"], d["dS"]]
+    given, found = _end_state_calcs(gas, process, i, s1, s2, m, steps, targets)
+    calcs = given + steps + found + _state_calcs(gas, i + 1, s2, m) + [d["dU"], W, Q, d["dH"], d["dS"]]
     # keep each Calc once, in first-use order
     seen, ordered = set(), []
     for c in calcs:
@@ -145,6 +147,43 @@ def _finish(gas: Gas, name: str, process: str, i: int, s1: State, s2: State, m: 
             seen.add(id(c))
             ordered.append(c)
     return LegResult(name, process, i, s1, s2, q, tuple(ordered), tuple(path), (), tuple(facts))
+
+
+_UNITS = {"P": "Pa", "T": "K", "v": "m**3/kg"}
+_HELD = {"isothermal": "T", "isobaric": "P", "isochoric": "v"}
+
+
+def _end_state_calcs(gas: Gas, process: str, i: int, s1: State, s2: State, m: float, steps: list[Calc],
+                     targets) -> tuple[list[Calc], list[Calc]]:
+    """How the end state's P, T and v were found: the end target and the property the process holds (shown
+    before the path steps), then what the equation of state gives and the volume of the mass (after them)."""
+    j = i + 1
+    done = {c.symbol for c in steps}
+    kinds = {t.kind for t in targets}
+    given: list[Calc] = []
+    out: list[Calc] = []
+    for prop in ("P", "T", "v"):
+        sym, val, unit = _s(prop, j), getattr(s2, prop), _UNITS[prop]
+        if sym in done:
+            continue
+        if _HELD.get(process) == prop:
+            given.append(Calc(sym, val, unit, "{x}", "path.constant", {"x": Term(_s(prop, i), getattr(s1, prop), unit)}))
+        elif prop == "v" and "v" in kinds:
+            given.append(Calc(sym, val, unit, "{V} / {m}", "state.specific_volume",
+                              {"V": Term(_s("V", j), val * m, "m**3"), "m": Term("m", m, "kg")}, note="end target"))
+        elif prop in kinds:
+            given.append(Calc(sym, val, unit, "", "input", note="end target"))
+        else:
+            if process == "isentropic":
+                pair = ("P", "s") if "P" in kinds else ("v", "s") if "v" in kinds else ("P", "s")
+            else:
+                pair = tuple(x for x in ("P", "T", "v") if x != prop)
+            out.append(Calc(sym, val, unit, f"{prop}({pair[0]}_{j}, {pair[1]}_{j})", gas.eos_method,
+                            note="from the equation of state"))
+    if "v" not in kinds or process == "isochoric":
+        out.append(Calc(_s("V", j), s2.v * m, "m**3", "{m}·{v}", "state.volume",
+                        {"m": Term("m", m, "kg"), "v": Term(_s("v", j), s2.v, "m**3/kg")}))
+    return given, out
 
 
 def _heat_first_law(i: int, dU: float, W: float) -> Calc:
@@ -254,7 +293,7 @@ def _polytropic(gas, name, i, s1, m, targets, n):
     dU = m * (s2.u - s1.u)
     Q = _heat_first_law(i, dU, Wv)
     path = [gas.state_Pv(P1 * (v1 / v) ** n, v) for v in _geom(v1, s2.v)[1:-1]]
-    return _finish(gas, name, "polytropic", i, s1, s2, m, W, Q, ncalc, steps, [s1, *path, s2], facts)
+    return _finish(gas, name, "polytropic", i, s1, s2, m, W, Q, ncalc, steps, [s1, *path, s2], facts, targets)
 
 
 def _isentropic(gas, name, i, s1, m, targets, n):
@@ -276,7 +315,7 @@ def _isentropic(gas, name, i, s1, m, targets, n):
     # along v with (density, entropy) flashes: fast for pure fluids and mixtures alike
     path = [gas.state_vs(v, s1.s) for v in _geom(s1.v, s2.v)[1:-1]] if s2.v != s1.v else []
     return _finish(gas, name, "isentropic", i, s1, s2, m, W, Q, _n_from_states(i, s1, s2), steps,
-                   [s1, *path, s2], [])
+                   [s1, *path, s2], [], targets)
 
 
 def _isothermal(gas, name, i, s1, m, targets, n):
@@ -300,7 +339,8 @@ def _isothermal(gas, name, i, s1, m, targets, n):
         facts.append("Real gas: heat from T·ΔS along the isotherm, work from the first law "
                      "(P·V is not constant for a real gas).")
     path = [gas.state_Tv(s1.T, v) for v in _geom(s1.v, s2.v)[1:-1]]
-    return _finish(gas, name, "isothermal", i, s1, s2, m, W, Q, _n_from_states(i, s1, s2), [], [s1, *path, s2], facts)
+    return _finish(gas, name, "isothermal", i, s1, s2, m, W, Q, _n_from_states(i, s1, s2), [], [s1, *path, s2], facts,
+                   targets)
 
 
 def _isobaric(gas, name, i, s1, m, targets, n):
@@ -314,7 +354,7 @@ def _isobaric(gas, name, i, s1, m, targets, n):
     Q = _heat_first_law(i, m * (s2.u - s1.u), Wv)
     path = [gas.state_Pv(s1.P, v) for v in _geom(s1.v, s2.v)[1:-1]]
     return _finish(gas, name, "isobaric", i, s1, s2, m, W, Q, Calc("n", 0.0, "", "0", "path.polytropic"), [],
-                   [s1, *path, s2], [])
+                   [s1, *path, s2], [], targets)
 
 
 def _isochoric(gas, name, i, s1, m, targets, n):
@@ -324,4 +364,4 @@ def _isochoric(gas, name, i, s1, m, targets, n):
     Q = _heat_first_law(i, m * (s2.u - s1.u), 0.0)
     path = [gas.state_Tv(T, s1.v) for T in _geom(s1.T, s2.T)[1:-1]]
     return _finish(gas, name, "isochoric", i, s1, s2, m, W, Q, Calc("n", math.inf, "", "∞", "path.polytropic"), [],
-                   [s1, *path, s2], [])
+                   [s1, *path, s2], [], targets)
