@@ -222,7 +222,7 @@ def compute(job: Job) -> Results:
             where = f"{leg.path}.end" + (f".{next(iter(leg.end))}" if len(leg.end) == 1 else "")
             raise JobError([job.problem(where, f"leg '{leg.name}': {exc}",
                                         "check the end target and the process against the start of this leg")]) from None
-        except (OverflowError, ZeroDivisionError):
+        except OverflowError:
             # an exponent or ratio so extreme that the path's numbers leave floating point
             raise JobError([job.problem(leg.path + (".n" if leg.n is not None else ".end"),
                                         f"leg '{leg.name}': the path P·Vⁿ = const with these values gives numbers "
