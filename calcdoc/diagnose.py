@@ -91,11 +91,12 @@ def ideal_condensation_warnings(job, gas, legs, start) -> list[str]:
     spec = job.gas
     if gas.model != "ideal" or not spec.fluid:
         return []
+    from .errors import PhysicsError
     from .gas import RealGas
 
     try:
         real = RealGas(spec.fluid)
-    except Exception:  # the warning is a courtesy; an unknown fluid is reported elsewhere
+    except PhysicsError:  # the warning is a courtesy; an unknown fluid is reported elsewhere
         return []
     if not real.pure:
         return []
@@ -107,4 +108,30 @@ def ideal_condensation_warnings(job, gas, legs, start) -> list[str]:
                 return [f"{label}: at P = {s.P / 1e3:.5g} kPa and T = {s.T - 273.15:.4g} °C real {spec.fluid} would "
                         f"condense (its saturation temperature there is {dew - 273.15:.4g} °C); the ideal-gas model "
                         "has no liquid and its numbers are not valid there. Use model: real."]
-    return []
+    return _ideal_deviation(real, spec.fluid, checks)
+
+
+#: Above this departure of the real fluid's compressibility factor from 1, an ideal-gas model is
+#: flagged (common practice: a few percent is the usual tolerance of a sizing calculation).
+Z_TOLERANCE = 0.02
+
+
+def _ideal_deviation(real, fluid: str, checks) -> list[str]:
+    """A warning where the real fluid's Z departs from 1 by more than Z_TOLERANCE at a state of the job."""
+    from .errors import PhysicsError
+
+    worst = None
+    for label, states in checks:
+        for s in (states[0], states[-1]):
+            try:
+                Z = real.state_PT(s.P, s.T).Z
+            except PhysicsError:
+                continue
+            if worst is None or abs(Z - 1) > abs(worst[0] - 1):
+                worst = (Z, label, s)
+    if worst is None or abs(worst[0] - 1) <= Z_TOLERANCE:
+        return []
+    Z, label, s = worst
+    return [f"{label}: real {fluid} has a compressibility factor Z = {Z:.4g} at P = {s.P / 1e3:.5g} kPa and "
+            f"T = {s.T - 273.15:.4g} °C (CoolProp), so the ideal-gas model is off by about {abs(Z - 1) * 100:.2g} % "
+            "in density there. Consider model: real."]

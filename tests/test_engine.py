@@ -108,3 +108,18 @@ def test_condensation_warns(make_job):
                    [{"name": "Squeeze", "process": "isothermal", "end": {"volume_ratio": 0.3}}])
     res = engine.run(job)
     assert any("two-phase" in w and "Squeeze" in w for w in res.warnings)
+
+
+def test_ideal_model_of_a_dense_fluid_warns(make_job):
+    import CoolProp.CoolProp as CP
+
+    job = make_job({"model": "ideal", "fluid": "CarbonDioxide"},
+                   {"pressure": "30 bar", "temperature": "40 degC", "volume": "1 m3"},
+                   [{"name": "Squeeze", "process": "isothermal", "end": {"pressure": "60 bar"}}])
+    res = engine.run(job)
+    Z = CP.PropsSI("Z", "P", 60e5, "T", 313.15, "CO2")          # CoolProp called directly: about 0.68
+    assert any(f"Z = {Z:.4g}" in w and "Squeeze" in w for w in res.warnings)
+    quiet = engine.run(make_job({"model": "ideal", "fluid": "Nitrogen"},
+                                {"pressure": "5 bar", "temperature": "300 K", "volume": "1 m3"},
+                                [{"name": "a", "process": "isothermal", "end": {"pressure": "8 bar"}}]))
+    assert not quiet.warnings            # nitrogen near ambient: Z within 0.2 % of 1 (CoolProp)
