@@ -84,7 +84,7 @@ class _Reader:
             self.add(node, exc.found, "give the pressure drop as a pressure difference ('0.3 bar') or a "
                      "percentage of the inlet pressure ('2 %')")
             return Drop()
-        inp = Input(p.si, p.unit, p.entered, node.path, *node.where, percent=p.percent)
+        inp = Input(p.si, p.unit, p.entered, node.path, *node.where, percent=p.percent, kind="pressure_difference")
         if p.si < 0 or (p.percent and p.si >= 1.0):
             self.add(node, f"a pressure drop of {p.entered} is not possible",
                      "give a drop of zero or more, and below 100 % of the inlet pressure")

@@ -179,10 +179,19 @@ def _phase_warnings(gas: Gas, label: str, states: list[State]) -> list[str]:
 
 def run(job: Job) -> Results:
     """Compute a job: its states, legs and warnings, the checks of its limits and its sweep."""
+    import dataclasses
+
     from .checks import with_checks
     from .sweep import with_sweep
 
-    return with_sweep(job, with_checks(job, compute(job)))
+    res = compute(job)
+    unmarked = [i for i in job.inputs if i.unmarked_pressure]
+    if unmarked:
+        listed = ", ".join(f"{i.path} = {i.entered} (line {i.line})" for i in unmarked)
+        res = dataclasses.replace(res, warnings=res.warnings + (
+            f"Pressures written without a gauge or absolute marker are taken as absolute: {listed}. If a gauge "
+            "pressure is meant, write barg or psig (with the site atmosphere).",))
+    return with_sweep(job, with_checks(job, res))
 
 
 def compute(job: Job) -> Results:

@@ -40,6 +40,18 @@ class Input:
     col: int
     gauge: bool = False
     percent: bool = False
+    kind: str = ""          # the kind of quantity (units.DIMENSIONS key) where known
+
+    @property
+    def difference(self) -> bool:
+        """A difference (pressure drop, temperature difference): shown without gauge/absolute or offset."""
+        return self.kind in ("pressure_difference", "temperature_difference")
+
+    @property
+    def unmarked_pressure(self) -> bool:
+        """A pressure in psi, bar or kgf/cm2 written without an a/g marker (taken as absolute)."""
+        parts = self.entered.split(maxsplit=1)
+        return self.kind == "pressure" and len(parts) == 2 and parts[1].strip() in ("psi", "bar", "kgf/cm2", "kg/cm2")
 
 
 @dataclass(frozen=True)
@@ -290,7 +302,7 @@ class _Validator:
                 self.add(node, f"'{parsed.entered}' is not positive", f"a {kind.replace('_', ' ')} must be greater than zero")
             return None
         inp = Input(parsed.si, parsed.unit, parsed.entered, node.path, *node.where, gauge=parsed.gauge,
-                    percent=parsed.percent)
+                    percent=parsed.percent, kind=kind)
         self.inputs.append(inp)
         return inp
 

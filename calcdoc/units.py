@@ -357,7 +357,7 @@ _PRETTY = {
     "kPa": "kPa", "psi": "psia", "degC": "°C", "degF": "°F", "m**3": "m³", "ft**3": "ft³", "kg": "kg", "lb": "lb",
     "m**3/kg": "m³/kg", "ft**3/lb": "ft³/lb", "kJ/kg": "kJ/kg", "Btu/lb": "Btu/lb", "kJ/(kg*K)": "kJ/(kg·K)",
     "Btu/(lb*degR)": "Btu/(lb·°R)", "kJ": "kJ", "Btu": "Btu", "kJ/K": "kJ/K", "Btu/degR": "Btu/°R", "kW": "kW",
-    "hp": "hp", "kg/s": "kg/s", "lb/hour": "lb/h", "kmol/h": "kmol/h", "lbmol/hour": "lbmol/h",
+    "hp": "hp", "Btu/hour": "Btu/h", "ft*lbf/lb": "ft·lbf/lb", "kg/s": "kg/s", "lb/hour": "lb/h", "kmol/h": "kmol/h", "lbmol/hour": "lbmol/h",
     "m**3/h": "m³/h", "ft**3/min": "ft³/min", "kg/m**3": "kg/m³", "lb/ft**3": "lb/ft³", "": "",
     "g/mol": "g/mol", "lb/lbmol": "lb/lbmol", "m": "m", "ft": "ft", "K": "K", "Pa": "Pa",
     "J/kg": "J/kg", "J/(kg*K)": "J/(kg·K)", "J": "J", "J/K": "J/K", "W": "W", "m**3/s": "m³/s",
@@ -366,8 +366,19 @@ _PRETTY = {
 }
 
 
+#: Display units of quantities that share an SI unit with others but are shown in their own trade unit:
+#: "W|heat" (a heat duty: Btu/h in US, not hp) and "J/kg|head" (a head: ft·lbf/lb in US, not Btu/lb).
+_FLAVOURS = {
+    ("W|heat", "SI"): "kW", ("W|heat", "US"): "Btu/hour",
+    ("J/kg|head", "SI"): "kJ/kg", ("J/kg|head", "US"): "ft*lbf/lb",
+}
+
+
 def display_unit(si_unit: str, system: str) -> str:
-    """The unit a report in ``system`` (SI or US) shows a value of SI unit ``si_unit`` in."""
+    """The unit a report in ``system`` (SI or US) shows a value of SI unit ``si_unit`` in; ``si_unit`` may
+    carry a flavour after '|' (see ``_FLAVOURS``)."""
+    if "|" in si_unit:
+        return _FLAVOURS.get((si_unit, system)) or display_unit(si_unit.split("|")[0], system)
     return _SYSTEMS[system].get(si_unit, si_unit)
 
 
@@ -396,14 +407,14 @@ def convert(value_si: float, si_unit: str, unit: str, difference: bool = False) 
 def display(value_si: float, si_unit: str, system: str, difference: bool = False) -> tuple[float, str]:
     """An SI value converted for a report in ``system``: (number, pretty unit).
 
-    Temperature differences (``difference=True``) are shown in K (SI) or °R (US), never in °C or °F.
+    Temperature differences (``difference=True``) are shown in K (SI) or °R (US), never in °C or °F;
+    pressure differences in kPa or psi (not psia: a difference is neither gauge nor absolute).
     """
     unit = display_unit(si_unit, system)
+    si_unit = si_unit.split("|")[0]
     if difference and si_unit == "K":
         unit = "K" if system == "SI" else "degR"
-    if difference and si_unit == "J/(kg*K)":
-        pass
     val = convert(value_si, si_unit, unit, difference=difference)
-    if not math.isfinite(val):
-        return val, pretty_unit(unit)
+    if difference and unit == "psi":
+        return val, "psi"
     return val, pretty_unit(unit) if unit != "degR" else "°R"

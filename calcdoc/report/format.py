@@ -62,13 +62,15 @@ def qty(value: float | None, si_unit: str, system: str, sig: int = 5, difference
 
 
 def unit_of(si_unit: str, system: str, difference: bool = False) -> str:
-    if difference and si_unit == "K":
+    if difference and si_unit.split("|")[0] == "K":
         return "K" if system == "SI" else "°R"
     return units.pretty_unit(units.display_unit(si_unit, system))
 
 
-def value_in(value: float, si_unit: str, system: str, sig: int = 5, difference: bool = False) -> Markup:
+def value_in(value: float | None, si_unit: str, system: str, sig: int = 5, difference: bool = False) -> Markup:
     """Only the number of a value in the report's unit system (for table cells under a unit header)."""
+    if value is None:
+        return Markup("—")
     v, _ = units.display(value, si_unit, system, difference=difference)
     return Markup(num(v, sig))
 
@@ -82,6 +84,16 @@ def subst_value(t: Term) -> str:
     if t.unit == "":
         return num(t.value, 6, strip=True)
     return f"{num(t.value, 6, strip=True)}\u202f{units.pretty_unit(t.unit)}"
+
+
+def flavour(c: Calc) -> str:
+    """The display unit of a calc's result where its SI unit is shared (heat duty, head): see units._FLAVOURS."""
+    sym = c.symbol.lstrip("Σ")
+    if c.unit == "W" and sym.startswith("Q̇"):
+        return "W|heat"
+    if c.unit == "J/kg" and sym.startswith("H_"):
+        return "J/kg|head"
+    return c.unit
 
 
 def result_si(c: Calc) -> Markup:

@@ -64,7 +64,7 @@ def _env():
                              trim_blocks=True, lstrip_blocks=True)
     env.filters.update(num=fmt.num, qty=fmt.qty, unit_of=fmt.unit_of, value_in=fmt.value_in,
                        symbol=fmt.symbol, eq=fmt.equation, result_si=fmt.result_si,
-                       css_string=fmt.css_string, subscripts=fmt.subscripts)
+                       css_string=fmt.css_string, flavour=fmt.flavour, subscripts=fmt.subscripts)
     return env
 
 
