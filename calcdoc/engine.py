@@ -189,8 +189,8 @@ def run(job: Job) -> Results:
     if unmarked:
         listed = ", ".join(f"{i.path} = {i.entered} (line {i.line})" for i in unmarked)
         res = dataclasses.replace(res, warnings=res.warnings + (
-            f"Pressures written without a gauge or absolute marker are taken as absolute: {listed}. If a gauge "
-            "pressure is meant, write barg or psig (with the site atmosphere).",))
+            f"Pressures written in psi or kgf/cm2 without a gauge or absolute marker are taken as absolute: {listed}. "
+            "If a gauge pressure is meant, write psig (with the site atmosphere); write psia to make it explicit.",))
     return with_sweep(job, with_checks(job, res))
 
 

@@ -49,9 +49,10 @@ class Input:
 
     @property
     def unmarked_pressure(self) -> bool:
-        """A pressure in psi, bar or kgf/cm2 written without an a/g marker (taken as absolute)."""
+        """A pressure in psi or kgf/cm2 written without an a/g marker: taken as absolute, though in much
+        practice these units are read as gauge (plain bar, kPa and MPa are read as absolute)."""
         parts = self.entered.split(maxsplit=1)
-        return self.kind == "pressure" and len(parts) == 2 and parts[1].strip() in ("psi", "bar", "kgf/cm2", "kg/cm2")
+        return self.kind == "pressure" and len(parts) == 2 and parts[1].strip() in ("psi", "kgf/cm2", "kg/cm2")
 
 
 @dataclass(frozen=True)

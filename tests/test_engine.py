@@ -123,3 +123,13 @@ def test_ideal_model_of_a_dense_fluid_warns(make_job):
                                 {"pressure": "5 bar", "temperature": "300 K", "volume": "1 m3"},
                                 [{"name": "a", "process": "isothermal", "end": {"pressure": "8 bar"}}]))
     assert not quiet.warnings            # nitrogen near ambient: Z within 0.2 % of 1 (CoolProp)
+
+
+def test_plain_psi_is_absolute_and_flagged(make_job):
+    job = make_job({"model": "ideal", "k": 1.4, "molar_mass": "28.97 g/mol"},
+                   {"pressure": "100 psi", "temperature": "80 degF", "volume": "1 ft3"},
+                   [{"name": "a", "process": "isochoric", "end": {"pressure": "120 psia"}}])
+    res = engine.run(job)
+    assert res.states[0].state.P == pytest.approx(100 * 6894.757293168, rel=1e-12)   # psia (NIST SP 811)
+    assert any("start.pressure = 100 psi" in w and "absolute" in w for w in res.warnings)
+    assert not any("120 psia" in w for w in res.warnings)
