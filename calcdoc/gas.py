@@ -11,7 +11,7 @@ from dataclasses import dataclass
 
 from .errors import PhysicsError
 
-__all__ = ["R_U", "State", "Gas", "IdealGas", "RealGas", "make_gas"]
+__all__ = ["R_U", "State", "Gas", "IdealGas", "RealGas"]
 
 #: Molar gas constant [J/(mol K)], exact (CODATA 2018).
 R_U = 8.314462618
@@ -278,10 +278,3 @@ class RealGas(Gas):
 def _short(exc: Exception) -> str:
     text = str(exc).strip().splitlines()[0] if str(exc).strip() else type(exc).__name__
     return text[:200]
-
-
-def make_gas(spec) -> Gas:
-    """The gas model a job asks for (``spec`` is a :class:`calcdoc.jobfile.GasSpec`)."""
-    if spec.model == "real":
-        return RealGas(spec.fluid, spec.mixture)
-    raise ValueError("ideal gases are made by the engine, which knows the start state")

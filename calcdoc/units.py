@@ -16,6 +16,9 @@ from functools import lru_cache
 
 __all__ = [
     "DIMENSIONS",
+    "P_STD",
+    "convert",
+    "pretty_unit",
     "Parsed",
     "UnitParseError",
     "display",
