@@ -81,6 +81,7 @@ def diagrams(results, system: str) -> dict[str, str]:
         ax.set_yscale("log")
     if allv:
         _limits(ax, allv, allP, vs, Ps)
+    _plain_log_ticks(ax)
     ax.set_xlabel(_label("specific volume v", "m**3/kg", system))
     ax.set_ylabel(_label("pressure P (absolute)", "Pa", system))
     ax.legend(fontsize=7.5, loc="best")
@@ -115,6 +116,18 @@ def _dome(ax, xs, ys):
     """The saturation dome (liquid line, then vapour line back): a dashed outline over a light fill."""
     ax.fill(xs, ys, color="#e6e3dc", zorder=0, lw=0)
     ax.plot(xs, ys, color="#7d7d7d", lw=0.9, ls="--", zorder=1, label="saturation (two-phase inside)")
+
+
+def _plain_log_ticks(ax) -> None:
+    """Log axes labelled with plain numbers (2, 5, 10, 20, ...) rather than powers of ten."""
+    from matplotlib.ticker import FuncFormatter, LogLocator
+
+    fmt = FuncFormatter(lambda x, _pos: f"{x:g}")
+    for axis, scale in ((ax.xaxis, ax.get_xscale()), (ax.yaxis, ax.get_yscale())):
+        if scale == "log":
+            axis.set_major_locator(LogLocator(base=10, subs=(1.0, 2.0, 5.0)))
+            axis.set_major_formatter(fmt)
+            axis.set_minor_formatter(FuncFormatter(lambda x, _pos: ""))
 
 
 def _limits(ax, xs, ys, dome_x=None, dome_y=None):
