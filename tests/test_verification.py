@@ -241,3 +241,17 @@ def test_rk4_real_gas_path_is_converged_at_the_steps_the_cases_use():
 def test_rk4_refuses_a_bad_number_of_steps(steps):
     with pytest.raises(_reference.ExpressionError, match="whole number of steps"):
         _reference.evaluate(f"rk4(lambda x, y: y, 0, 1, 1, {steps})", {})
+
+
+def test_breaking_the_stage_ratio_fails_the_staging_cases_only(monkeypatch):
+    # The flow cases must be sensitive to the engine: a stage ratio 0.1 % off fails every ideal-gas case
+    # with a staged compressor and no other ideal-gas flow case.
+    import calcdoc.staging as staging
+
+    good = staging.equal_stage_ratio
+    monkeypatch.setattr(staging, "equal_stage_ratio", lambda *a, **k: 1.001 * good(*a, **k))
+    flow = [c for c in CASES if c.topic in ("flow-ideal", "limits") and c.job and c.job.get("system") == "flow"]
+    staged = {c.id for c in flow if any("staging" in leg for leg in c.job["legs"])}
+    assert len(staged) >= 4
+    failed = {c.id for c in flow if selftest.run_case(c).status != "pass"}
+    assert failed == staged
