@@ -4,7 +4,9 @@ A verification case writes its expected value as a small expression over its own
 example ``P1*V1*log(V2/V1)`` (a closed form from the cited textbook) or
 ``quad(lambda V: PropsSI('P', 'T', T1, 'Dmass', m/V, 'Nitrogen'), V1, V2)`` (a reference library
 called directly). This module evaluates such expressions with Python's ``math`` module, CoolProp's
-``PropsSI`` and SciPy's ``quad`` and ``brentq`` only.
+``PropsSI``, SciPy's ``quad`` and ``brentq``, and ``rk4``, a plain fixed-step Runge–Kutta integrator
+written out below for paths that are differential equations rather than integrals (for example the
+enthalpy along a compressor path of constant polytropic efficiency, dh/dlnP = P·v(P, h)/η_p).
 
 It deliberately imports nothing from calcdoc: an expected value never passes through calcdoc's own
 code paths (a test checks the imports of this module). Expressions are parsed and only a small set of
@@ -18,7 +20,7 @@ import math
 from dataclasses import dataclass, field
 from importlib import metadata
 
-__all__ = ["ExpressionError", "Evaluation", "FUNCTIONS", "LIBRARIES", "evaluate", "library_version", "names_used"]
+__all__ = ["ExpressionError", "Evaluation", "FUNCTIONS", "LIBRARIES", "evaluate", "library_version", "names_used", "rk4"]
 
 
 class ExpressionError(ValueError):
@@ -48,6 +50,34 @@ def _scipy_brentq(f, a, b):
     return brentq(f, a, b, xtol=1e-300, rtol=1e-15, maxiter=200)
 
 
+#: Most steps ``rk4`` accepts (a guard against a case file asking for an endless loop).
+RK4_MAX_STEPS = 100_000
+
+
+def rk4(f, x0, y0, x1, steps):
+    """y(x1) for dy/dx = f(x, y), y(x0) = y0: the classical fourth-order Runge–Kutta method with
+    ``steps`` equal steps (Kutta 1901; Hairer, Nørsett & Wanner, Solving Ordinary Differential
+    Equations I, 2nd ed., 1993, sec. II.1, table 1.2). Its global error falls as the fourth power of
+    the step, so halving the step shows the error of a result.
+
+    Deliberately the plainest scheme, with no step-size control: it shares nothing with the adaptive
+    integration in calcdoc's engine.
+    """
+    n = int(steps)
+    if n != steps or not 1 <= n <= RK4_MAX_STEPS:
+        raise ExpressionError(f"rk4 takes a whole number of steps from 1 to {RK4_MAX_STEPS}, not {steps!r}")
+    x0, x1, y = float(x0), float(x1), float(y0)
+    dx = (x1 - x0) / n
+    for i in range(n):
+        x = x0 + i * dx
+        k1 = f(x, y)
+        k2 = f(x + dx / 2, y + dx / 2 * k1)
+        k3 = f(x + dx / 2, y + dx / 2 * k2)
+        k4 = f(x + dx, y + dx * k3)
+        y += dx / 6 * (k1 + 2 * k2 + 2 * k3 + k4)
+    return y
+
+
 @dataclass(frozen=True)
 class _Fn:
     call: object
@@ -59,6 +89,7 @@ FUNCTIONS: dict[str, _Fn] = {
     "PropsSI": _Fn(_coolprop_propssi, "CoolProp", "CoolProp.CoolProp.PropsSI (high-level interface), called directly"),
     "quad": _Fn(_scipy_quad, "scipy", f"scipy.integrate.quad, adaptive Gauss–Kronrod, epsrel = {QUAD_EPSREL:g}"),
     "brentq": _Fn(_scipy_brentq, "scipy", "scipy.optimize.brentq, bracketed root"),
+    "rk4": _Fn(rk4, "", "classical fourth-order Runge–Kutta, equal steps (calcdoc._reference.rk4, no calcdoc physics)"),
     "sqrt": _Fn(math.sqrt, "", "math.sqrt"),
     "exp": _Fn(math.exp, "", "math.exp"),
     "expm1": _Fn(math.expm1, "", "math.expm1"),

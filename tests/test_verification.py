@@ -203,3 +203,55 @@ def test_a_case_calcdoc_cannot_run_is_reported_not_raised():
     assert r.status == "error" and "NoSuchGas" in r.error
     assert not report.passed
     assert selftest.to_json(report)["verdict"] == "fail"
+
+
+# -- rk4, the reference side's integrator for paths that are differential equations -------------------
+def test_rk4_is_fourth_order_on_exponential_growth():
+    # dy/dx = y, y(0) = 1 gives y(1) = e; the classical Runge–Kutta method has global error O(h^4)
+    # (Hairer, Nørsett & Wanner 1993, sec. II.1), so halving the step cuts the error about 16-fold.
+    import math
+
+    err10 = _reference.rk4(lambda x, y: y, 0.0, 1.0, 1.0, 10) - math.e
+    err20 = _reference.rk4(lambda x, y: y, 0.0, 1.0, 1.0, 20) - math.e
+    assert abs(err20) < 1e-6
+    assert 12.0 < err10 / err20 < 20.0
+
+
+def test_rk4_expression_reproduces_the_ideal_gas_polytropic_path():
+    # Along a compressor path of constant η_p, dh/dlnP = P·v/η_p = R·T/η_p; with h = cp·T the closed form
+    # is T2/T1 = (P2/P1)^((k−1)/(k·η_p)) (Dixon & Hall 2014, ch. 2).
+    given = {"R": 287.0, "cp": 1004.5, "eta": 0.8, "T1": 300.0, "P1": 1.0e5, "P2": 4.0e5}
+    ev = _reference.evaluate("rk4(lambda x, h: R*h/(cp*eta), log(P1), cp*T1, log(P2), 40)/cp", given)
+    assert ev.value == pytest.approx(300.0 * 4.0 ** (287.0 / (1004.5 * 0.8)), rel=1e-9)
+    assert ev.libraries == ()   # rk4 is plain Python; the report names no library for it
+
+
+def test_rk4_real_gas_path_is_converged_at_the_steps_the_cases_use():
+    # The flow-real cases integrate dh/dlnP = P·v(P, h)/η_p with 100 steps (60 inside a root search);
+    # halving the step must not change the enthalpy rise by more than 1e-9 of it (v from CoolProp directly).
+    expr = ("rk4(lambda x, h: exp(x)/(0.8*PropsSI('Dmass', 'P', exp(x), 'Hmass', h, 'CarbonDioxide')), "
+            "log(80.0e5), h1, log(250.0e5), {n}) - h1")
+    given = {"h1": _reference.evaluate("PropsSI('Hmass', 'P', 80.0e5, 'T', 313.15, 'CarbonDioxide')", {}).value}
+    coarse = _reference.evaluate(expr.format(n=30), given).value
+    fine = _reference.evaluate(expr.format(n=60), given).value
+    assert abs(coarse - fine) < 1e-9 * abs(fine)
+
+
+@pytest.mark.parametrize("steps", ["0", "2.5", "1000001"])
+def test_rk4_refuses_a_bad_number_of_steps(steps):
+    with pytest.raises(_reference.ExpressionError, match="whole number of steps"):
+        _reference.evaluate(f"rk4(lambda x, y: y, 0, 1, 1, {steps})", {})
+
+
+def test_breaking_the_stage_ratio_fails_the_staging_cases_only(monkeypatch):
+    # The flow cases must be sensitive to the engine: a stage ratio 0.1 % off fails every ideal-gas case
+    # with a staged compressor and no other ideal-gas flow case.
+    import calcdoc.staging as staging
+
+    good = staging.equal_stage_ratio
+    monkeypatch.setattr(staging, "equal_stage_ratio", lambda *a, **k: 1.001 * good(*a, **k))
+    flow = [c for c in CASES if c.topic in ("flow-ideal", "limits") and c.job and c.job.get("system") == "flow"]
+    staged = {c.id for c in flow if any("staging" in leg for leg in c.job["legs"])}
+    assert len(staged) >= 4
+    failed = {c.id for c in flow if selftest.run_case(c).status != "pass"}
+    assert failed == staged
