@@ -265,6 +265,10 @@ class _Validator:
         if node is None:
             return default
         val = node.value if node.kind == "scalar" else None
+        if isinstance(val, str) and val not in choices:
+            # the trade writes Polytropic, REAL, si: the choice is the same word
+            folded = {c.casefold(): c for c in choices}
+            val = folded.get(val.strip().casefold(), val)
         if not isinstance(val, str) or val not in choices:
             close = difflib.get_close_matches(str(val), choices, n=1, cutoff=0.6) if isinstance(val, str) else []
             hint = f"did you mean '{close[0]}'? " if close else ""

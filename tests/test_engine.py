@@ -133,3 +133,10 @@ def test_plain_psi_is_absolute_and_flagged(make_job):
     assert res.states[0].state.P == pytest.approx(100 * 6894.757293168, rel=1e-12)   # psia (NIST SP 811)
     assert any("start.pressure = 100 psi" in w and "absolute" in w for w in res.warnings)
     assert not any("120 psia" in w for w in res.warnings)
+
+
+def test_choices_are_read_whatever_their_case(make_job):
+    a = make_job({"model": "Ideal", "k": 1.4, "molar_mass": "28 g/mol"},
+                 {"pressure": "5 bar", "temperature": "300 K", "volume": "1 m3"},
+                 [{"name": "a", "process": "Isothermal", "end": {"pressure": "8 bar"}}], units="si")
+    assert a.gas.model == "ideal" and a.legs[0].process == "isothermal" and a.units == "SI"
