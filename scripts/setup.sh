@@ -35,7 +35,12 @@ stamp=.venv/.calcdoc-installed
 want=$(cat pyproject.toml | sha256sum | cut -d' ' -f1)
 if [ ! -f "$stamp" ] || [ "$(cat "$stamp")" != "$want" ]; then
   echo "setup: installing calcdoc and its dependencies into .venv"
-  .venv/bin/python -m pip install --quiet --disable-pip-version-check --upgrade pip
-  .venv/bin/python -m pip install --quiet --disable-pip-version-check -e ".[test]"
+  log=.venv/pip-install.log
+  if ! { .venv/bin/python -m pip install --quiet --disable-pip-version-check --upgrade pip &&
+         .venv/bin/python -m pip install --quiet --disable-pip-version-check -e ".[test]"; } > "$log" 2>&1; then
+    cat "$log" >&2
+    echo "setup: installing into .venv failed (log above, also in $log)" >&2
+    exit 1
+  fi
   echo "$want" > "$stamp"
 fi
