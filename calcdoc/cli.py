@@ -289,7 +289,8 @@ def _flow_leg_line(leg, show) -> str:
                        ("power", "P gas"), ("shaft_power", "P shaft"), ("duty", "duty"), ("dT", "ΔT")):
         if key in qd and not (key in ("power", "duty") and qd[key].value == 0.0):
             c = qd[key]
-            parts.append(f"{label} = {show(c.value, c.unit, difference=(key == 'dT'))}")
+            unit = {"duty": "W|heat", "head": "J/kg|head"}.get(key, c.unit)
+            parts.append(f"{label} = {show(c.value, unit, difference=(key == 'dT'))}")
     return ", ".join(parts)
 
 
