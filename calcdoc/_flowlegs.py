@@ -18,7 +18,16 @@ from .errors import PhysicsError
 from .gas import Gas, State
 from .processes import LegResult
 
-__all__ = ["Ctx", "machine", "heat_exchanger", "throttle", "reversible"]
+__all__ = ["Ctx", "MeasuredEndError", "machine", "heat_exchanger", "throttle", "reversible"]
+
+
+class MeasuredEndError(PhysicsError):
+    """A measured end temperature that no adiabatic machine of this kind can reach (the engine points
+    at the leg's end temperature)."""
+
+    def __init__(self, found: str, valid: str):
+        self.valid = valid
+        super().__init__(found)
 
 PATH_POINTS = 8
 
@@ -142,6 +151,7 @@ def _machine_ideal(ctx, comp, i, s1, P2, r, eta_p, eta_s, T2m, facts):
                           "flow.eta_s", {"T1": T1t, "T2s": Term(f"T_{j}s", T2s, "K"), "eta": et}))
     else:
         T2 = T2m
+        _check_measured(comp, P2, T1, T2, T2s)
         calcs.append(Calc(f"T_{j}", T2, "K", "{T2}", "input", {"T2": _t("T", j, T2, "K")}, note="measured"))
     s2, s2s = gas.state_PT(P2, T2), gas.state_PT(P2, T2s)
     if eta_s is None:
@@ -163,6 +173,25 @@ def _machine_ideal(ctx, comp, i, s1, P2, r, eta_p, eta_s, T2m, facts):
     facts.append("Ideal gas with constant specific heats: closed-form end temperatures.")
     path = [s1] + [gas.state_PT(P, T1 * (P / s1.P) ** (math.log(T2 / T1) / math.log(r))) for P in _path_P(s1.P, P2)] + [s2]
     return s2, s2s, epc, eps, path, calcs
+
+
+def _check_measured(comp: bool, P2: float, T1: float, T2: float, T2s: float) -> None:
+    """Refuse a measured end temperature that would need an efficiency outside (0, 1]: a compressor
+    discharges above its isentropic end temperature; an expander ends between it and its inlet."""
+    c = lambda T: f"{T - 273.15:.4g} °C"   # noqa: E731
+    if comp and T2 < T2s:
+        raise MeasuredEndError(
+            f"the measured end temperature {c(T2)} is below the isentropic end temperature T2s = {c(T2s)} at "
+            f"{P2 / 1e3:.6g} kPa: it would need an efficiency above 1",
+            f"a compressor's end temperature T2 must be above the isentropic T2s = {c(T2s)}; check the measured "
+            "temperature and the end pressure")
+    if not comp and not (T2s <= T2 < T1):
+        where = "below the isentropic end temperature" if T2 < T2s else "at or above the inlet temperature"
+        raise MeasuredEndError(
+            f"the measured end temperature {c(T2)} is {where} (T2s = {c(T2s)} at {P2 / 1e3:.6g} kPa, "
+            f"T1 = {c(T1)}): no efficiency from 0 to 1 gives it",
+            f"an expander's end temperature lies in T2s ≤ T2 ≤ T1, from {c(T2s)} to below {c(T1)}; check the "
+            "measured temperature and the end pressure")
 
 
 def _isentropic_end(ctx: Ctx, s1: State, P2: float, T_guess: float) -> Point:
@@ -200,6 +229,7 @@ def _machine_real(ctx, comp, i, s1, P2, r, eta_p, eta_s, T2m, facts):
             p2 = solve_T(eos, P2, T_guess, "h", h2, f"h = {h2:.6g} J/kg")
             calcs.append(Calc(f"T_{j}", p2.state.T, "K", f"T(P_{j}, h_{j})", "eos.real"))
         else:
+            _check_measured(comp, P2, s1.T, T2m, p2s.state.T)
             p2 = eos.pt(P2, T2m)
             calcs.append(Calc(f"T_{j}", T2m, "K", "{T2}", "input", {"T2": _t("T", j, T2m, "K")}, note="measured"))
         eta_p, path, steps = _eta_p_from_end(ctx, comp, p1, p2, p2s)
@@ -261,7 +291,8 @@ def _eta_p_from_end(ctx: Ctx, comp: bool, p1: Point, p2: Point, p2s: Point) -> t
         raise PhysicsError("the polytropic efficiency of the measured end state did not converge")
     if b > 1.0 + 1e-9 or abs(gb) > 1e-3:
         raise PhysicsError(f"no polytropic efficiency up to 1 reaches the end state (T = {s2.T:.6g} K): the end "
-                           "temperature is at or below the isentropic one")
+                           + ("temperature is at or below the isentropic one" if comp else
+                              "temperature is outside T2s ≤ T2 ≤ T1 (isentropic end to inlet)"))
     return b, path_b, steps_b
 
 

@@ -11,7 +11,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from ._flowjob import LegOptions, Staging, problem_at, read_options
-from ._flowlegs import Ctx, heat_exchanger, machine, reversible, throttle
+from ._flowlegs import Ctx, MeasuredEndError, heat_exchanger, machine, reversible, throttle
 from ._flowpath import Eos
 from .calc import Calc, Term
 from .engine import _basis, make_gas, saturation_near, site_calcs, software_versions
@@ -64,6 +64,8 @@ def run_flow(job: Job) -> FlowResults:
     for leg, opt in zip(job.legs, options):
         try:
             made, info = _leg(job, ctx, leg, opt, len(legs) + 1, s)
+        except MeasuredEndError as exc:
+            raise problem_at(job, leg.end["temperature"], f"leg '{leg.name}': {exc}", exc.valid) from None
         except PhysicsError as exc:
             raise JobError([job.problem(f"{leg.path}.end", f"leg '{leg.name}': {exc}",
                                         "check the end target, the efficiency and the gas against the start of "
