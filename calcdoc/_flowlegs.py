@@ -12,7 +12,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from ._flowpath import Eos, Point, polytropic_path, solve_T
+from ._flowpath import Eos, Point, TwoPhaseError, polytropic_path, solve_T
 from .calc import Calc, Term
 from .errors import PhysicsError
 from .gas import Gas, State
@@ -353,6 +353,11 @@ def throttle(ctx: Ctx, name: str, i: int, s1: State, P2: float) -> LegResult:
         s2 = ctx.gas.state_PT(P2, s1.T)
         path = [s1] + [ctx.gas.state_PT(P, s1.T) for P in _path_P(s1.P, P2, 4)] + [s2]
         note = "ideal gas: enthalpy depends on temperature only, so the temperature does not change"
+    elif ctx.gas.pure:
+        # pure fluid: the HmassP flash gives single-phase and two-phase outlets alike
+        path = [s1] + [ctx.gas.state_Ph(P, s1.h) for P in _path_P(s1.P, P2, 4) + [P2]]
+        s2 = path[-1]
+        note = "T at P_2 with h_2 = h_1 (equation of state, (h, P) flash)"
     else:
         path, T = [s1], s1.T
         for P in _path_P(s1.P, P2, 4) + [P2]:
@@ -361,15 +366,24 @@ def throttle(ctx: Ctx, name: str, i: int, s1: State, P2: float) -> LegResult:
             path.append(p.state)
         s2 = path[-1]
         note = "T at P_2 with h_2 = h_1 (equation of state)"
+    wet = s2.quality is not None
+    if wet:
+        note = "saturation temperature at P_2: the outlet is two-phase"
     calcs = [Calc(f"h_{j}", s1.h, "J/kg", "{h1}", "flow.throttle", {"h1": _t("h", i, s1.h, "J/kg")},
                   note="adiabatic, no work: enthalpy is conserved"),
              Calc(f"T_{j}", s2.T, "K", f"T(P_{j}, h_{j})", ctx.gas.eos_method, note=note)]
     dT = Calc("ΔT", s2.T - s1.T, "K", "{T2} − {T1}", "flow.throttle",
               {"T2": _t("T", j, s2.T, "K"), "T1": _t("T", i, s1.T, "K")}, difference=True)
     calcs.append(dT)
+    facts_wet = []
+    if wet:
+        calcs.append(Calc(f"x_{j}", s2.quality, "", f"x(P_{j}, h_{j})", ctx.gas.eos_method,
+                          note="vapour quality: mass fraction of vapour in the two-phase outlet"))
+        facts_wet.append(f"The outlet is two-phase: vapour quality x = {s2.quality:.4f} at the saturation "
+                         f"temperature {s2.T - 273.15:.4g} °C.")
     zero_w = Calc("w_in", 0.0, "J/kg", "0", "flow.throttle")
     zero = Calc("Q̇", 0.0, "W", "0", "flow.throttle")
-    facts = [f"Throttle: the temperature changes by {s2.T - s1.T:+.4g} K (Joule–Thomson effect)."]
+    facts = [f"Throttle: the temperature changes by {s2.T - s1.T:+.4g} K (Joule–Thomson effect)."] + facts_wet
     return LegResult(name, "throttle", i, s1, s2, {"work_in": zero_w, "duty": zero,
                                                    "power": Calc("P_gas", 0.0, "W", "0", "flow.throttle"), "dT": dT},
                      tuple(calcs), tuple(path), (), tuple(facts))
@@ -401,6 +415,10 @@ def reversible(ctx: Ctx, name: str, process: str, i: int, s1: State, P2: float, 
             W = Calc("w_in", wv, "J/kg", "{h2} − {h1}", "flow.firstlaw_adiabatic",
                      {"h2": _t("h", j, s2.h, "J/kg"), "h1": _t("h", i, s1.h, "J/kg")}, note="= ∫v·dP at constant s")
     elif process == "isothermal":
+        if not ctx.ideal and ctx.eos.side(s1.P, s1.T) != ctx.eos.side(P2, s1.T):
+            AS = ctx.gas.AS   # the saturation pressure at T_1 lies between the ends
+            AS.update(ctx.gas._CP.QT_INPUTS, 1.0, s1.T)
+            raise TwoPhaseError("the isothermal path", AS.p(), s1.T)
         pts = [ctx.state(P, s1.T) for P in _path_P(s1.P, P2)]
         s2 = ctx.state(P2, s1.T)
         if ctx.ideal:

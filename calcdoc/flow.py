@@ -12,7 +12,7 @@ from dataclasses import dataclass
 
 from ._flowjob import LegOptions, Staging, problem_at, read_options
 from ._flowlegs import Ctx, MeasuredEndError, heat_exchanger, machine, reversible, throttle
-from ._flowpath import Eos
+from ._flowpath import Eos, TwoPhaseError
 from .calc import Calc, Term
 from .engine import _basis, make_gas, saturation_near, site_calcs, software_versions
 from .errors import JobError, PhysicsError
@@ -64,6 +64,11 @@ def run_flow(job: Job) -> FlowResults:
     for leg, opt in zip(job.legs, options):
         try:
             made, info = _leg(job, ctx, leg, opt, len(legs) + 1, s)
+        except TwoPhaseError as exc:
+            target = (leg.end.get("pressure") or leg.end.get("pressure_ratio") or leg.end.get("temperature"))
+            raise problem_at(job, target, f"leg '{leg.name}' ({leg.process}): {exc}",
+                             "this leg kind is computed for a single phase only: end it above the saturation "
+                             "pressure, start it warmer, or use a throttle (which gives a two-phase outlet)") from None
         except MeasuredEndError as exc:
             raise problem_at(job, leg.end["temperature"], f"leg '{leg.name}': {exc}", exc.valid) from None
         except PhysicsError as exc:
@@ -75,6 +80,11 @@ def run_flow(job: Job) -> FlowResults:
         for res in made:
             warnings += _phase_warnings(ctx, f"Leg '{res.name}'", list(res.path), res.process in ("cooler", "throttle",
                                                                                                    "expander"))
+            if res.process == "throttle" and res.end.quality is not None:
+                e = res.end
+                warnings.append(f"Leg '{res.name}': the outlet is two-phase at P = {e.P / 1e3:.5g} kPa, saturation "
+                                f"temperature {e.T - 273.15:.4g} °C, vapour quality x = {e.quality:.4g}. "
+                                "Condensation: liquid leaves the throttle; check that what follows accepts it.")
             legs.append(res)
             s = res.end
     records = tuple(StateRecord(k + 1, str(k + 1), st, V_dot=ctx.m_dot * st.v)
