@@ -173,7 +173,21 @@ class Places:
     def __init__(self, job: Job):
         self.job = job
         self.legs = [leg.name for leg in job.legs]
-        self.labels = [str(i + 1) for i in range(len(job.legs) + 1)]
+        self.procs = {leg.name: leg.process for leg in job.legs}
+        states = 1
+        for leg in job.legs:
+            # a staged compressor becomes "<leg>, stage k" and "<leg>, intercooler k" legs at run time:
+            # accept the names and state labels up to what its staging can produce (checked again
+            # against the computed legs and states when the limits are judged)
+            N = _most_stages(leg)
+            for k in range(1, N + 1 if N > 1 else 1):
+                self.legs.append(f"{leg.name}, stage {k}")
+                self.procs[self.legs[-1]] = "compressor"
+                if k < N:
+                    self.legs.append(f"{leg.name}, intercooler {k}")
+                    self.procs[self.legs[-1]] = "cooler"
+            states += 2 * N - 1
+        self.labels = [str(i + 1) for i in range(states)]
 
     def valid(self) -> str:
         return (f"legs: {', '.join(repr(n) for n in self.legs)}; states: {', '.join(self.labels)}")
@@ -184,8 +198,9 @@ class Places:
                 add(node, f"{q.name} is a total over the whole train and takes no 'at'", "remove 'at'")
                 continue
             if name in self.legs:
-                proc = self.job.legs[self.legs.index(name)].process
-                if not applies(q, proc):
+                proc = self.procs[name]
+                if not applies(q, proc) and not any(self.procs[n] in q.on for n in self.legs
+                                                    if n.startswith(f"{name}, intercooler ")):
                     add(node, f"'{name}' is a {proc} leg", f"{_applies_text(q)}; name such a leg")
                 continue
             if name in self.labels:
@@ -196,6 +211,20 @@ class Places:
             close = difflib.get_close_matches(name, self.legs + self.labels, n=1, cutoff=0.6)
             hint = f"did you mean '{close[0]}'? " if close else ""
             add(node, f"this job has no leg or state named '{name}'", f"{hint}{self.valid()}")
+
+
+def _most_stages(leg) -> int:
+    """The most stages a compressor leg's staging block can give (1 when it has none)."""
+    from ._flowjob import DEFAULT_MAX_STAGES
+
+    node = leg.options.get("staging") if leg.process == "compressor" else None
+    if node is None or node.kind != "map":
+        return 1
+    for key in ("stages", "max_stages"):
+        v = node.value.get(key)
+        if v is not None and isinstance(v.value, int) and not isinstance(v.value, bool):
+            return max(1, min(v.value, 12))
+    return DEFAULT_MAX_STAGES
 
 
 def quantity_problem(q: Quantity | None, name: str, system: str) -> tuple[str, str] | None:
@@ -407,6 +436,9 @@ def locations(job: Job, results, q: Quantity, at: tuple[str, ...], where: tuple[
     for name in at:
         # a compressor leg split into stages by the job's staging block answers for every stage
         stages = [n for n in legs if n.startswith(f"{name}, stage ")] if name not in legs else [name]
+        if q.on and stages and not any(applies(q, legs[n].process) for n in stages):
+            # a trade quantity of coolers named on a staged compressor: its intercoolers
+            stages = [n for n in legs if n.startswith(f"{name}, intercooler ")] or stages
         if stages:
             for stage in stages:
                 if not applies(q, legs[stage].process):
@@ -422,6 +454,9 @@ def locations(job: Job, results, q: Quantity, at: tuple[str, ...], where: tuple[
             if c is None:
                 fail(f"state {name} has no {q.name}", "name another quantity")
             out.append((f"state {name}", c))
+        elif name in recs:
+            fail(f"{q.name} is a quantity of a leg, but '{name}' is a state label",
+                 f"name a leg: {', '.join(repr(n) for n in legs)}")
         else:
             fail(f"this job has no leg or state named '{name}' that has {q.name}",
                  f"legs: {', '.join(repr(n) for n in legs)}; states: {', '.join(recs)}")
