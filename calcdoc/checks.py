@@ -106,12 +106,18 @@ QUANTITIES: dict[str, Quantity] = {q.name: q for q in (
     _q("heating_duty", "power", "leg", "duty", ("flow",), symbol="Q̇_heat", title="heating duty", on=("heater",)),
     _q("power_output", "power", "leg", "power", ("flow",), symbol="P_out", title="gas power output", sign=-1.0,
        on=("expander",)),
-    _q("shaft_power_output", "power", "leg", "shaft_power", ("flow",), symbol="P_shaft,out",
+    _q("shaft_power_output", "power", "leg", "shaft_power", ("flow",), symbol="P_{shaft,out}",
        title="shaft power output", sign=-1.0, on=("expander",)),
-    # train totals over every leg (one driver for a staged machine, the total cooling load)
-    _q("total_power", "power", "total", "ΣP_gas", ("flow",), symbol="ΣP_gas", title="total gas power"),
-    _q("total_shaft_power", "power", "total", "ΣP_shaft", ("flow",), symbol="ΣP_shaft", title="total shaft power"),
-    _q("total_duty", "power", "total", "ΣQ̇", ("flow",), symbol="ΣQ̇", title="net heat duty of the train"),
+    # train totals in the trade's sense, each positive (one driver for a staged machine, the cooling load)
+    _q("total_power", "power", "total", "ΣP_comp", ("flow",), symbol="ΣP_comp", title="total compressor gas power"),
+    _q("total_power_output", "power", "total", "ΣP_out", ("flow",), symbol="ΣP_out",
+       title="total expander gas power output"),
+    _q("total_cooling_duty", "power", "total", "ΣQ̇_cool", ("flow",), symbol="ΣQ̇_cool", title="total cooling duty"),
+    _q("total_heating_duty", "power", "total", "ΣQ̇_heat", ("flow",), symbol="ΣQ̇_heat", title="total heating duty"),
+    _q("total_shaft_power", "power", "total", "ΣP_shaft", ("flow",), symbol="ΣP_shaft",
+       title="total compressor shaft power"),
+    _q("total_shaft_power_output", "power", "total", "ΣP_{shaft,out}", ("flow",), symbol="ΣP_{shaft,out}",
+       title="total expander shaft power output"),
 )}
 
 #: Other spellings engineers write, mapped to the names above.
@@ -412,6 +418,9 @@ def locations(job: Job, results, q: Quantity, at: tuple[str, ...], where: tuple[
         found = [c for c in getattr(results, "totals", ()) if c.symbol == q.attr]
         if not found:
             fail(f"this job has no {q.title}", "name a quantity this job computes")
+        if "partial:" in found[0].note:
+            fail(f"the {q.title} is partial ({found[0].note.split('partial:')[1].strip()})",
+                 "give every machine a mechanical_efficiency, or limit each leg's shaft_power")
         return [("train", found[0])]
     if not at:
         if q.scope in ("state", "record"):

@@ -24,6 +24,9 @@ from .staging import stage_ratio_calc, suction_pressures
 
 __all__ = ["FlowResults", "run_flow"]
 
+#: Marks the note of a shaft-power total that leaves out machines with no mechanical efficiency.
+PARTIAL = "partial:"
+
 #: A state closer than this to its dew (saturation) temperature gets a warning [K] (common practice).
 NEAR_DEW_K = 5.0
 
@@ -274,15 +277,38 @@ def _with(res: LegResult, **kw) -> LegResult:
 
 
 def _totals(legs: list[LegResult]) -> tuple[Calc, ...]:
+    """Train totals in the trade's sense, each positive: the gas power of the compressions (legs with
+    work into the gas), the gas power output of the expansions, the heat removed (cooling duty) and
+    the heat added (heating duty), and the shaft power of the compressors (and of the expanders)
+    where mechanical efficiencies are given; a shaft total that leaves a machine out says so."""
     out = []
-    for key, sym, what in (("power", "ΣP_gas", "gas power"), ("shaft_power", "ΣP_shaft", "shaft power"),
-                           ("duty", "ΣQ̇", "heat duty")):
-        items = [(leg, leg.quantities[key]) for leg in legs if key in leg.quantities]
-        if not items or (key == "shaft_power" and not items):
-            continue
-        names = {f"x{k}": Term(c.symbol + f" ({leg.name})", c.value, c.unit) for k, (leg, c) in enumerate(items)}
+
+    def pick(key: str, positive: bool):
+        return [(leg, leg.quantities[key]) for leg in legs if key in leg.quantities
+                and (leg.quantities[key].value > 0 if positive else leg.quantities[key].value < 0)]
+
+    def total(sym: str, note: str, items, negate: bool) -> None:
+        if not items:
+            return
+        names = {f"x{k}": Term(f"{c.symbol} ({leg.name})", c.value, c.unit) for k, (leg, c) in enumerate(items)}
         eq = " + ".join("{" + k + "}" for k in names)
-        out.append(Calc(sym, sum(c.value for _, c in items), "W", eq, "flow.total", names, note=f"total {what}"))
+        if negate:
+            eq = f"−({eq})" if len(names) > 1 else f"−{eq}"
+        value = sum(c.value for _, c in items)
+        out.append(Calc(sym, -value if negate else value, "W", eq, "flow.total", names, note=note))
+
+    comp, exp = pick("power", True), pick("power", False)
+    total("ΣP_comp", "total compressor gas power", comp, False)
+    total("ΣP_out", "total expander gas power output", exp, True)
+    total("ΣQ̇_cool", "total cooling duty (heat removed from the gas)", pick("duty", False), True)
+    total("ΣQ̇_heat", "total heating duty (heat added to the gas)", pick("duty", True), False)
+    for group, sym, what, negate in ((comp, "ΣP_shaft", "total compressor shaft power", False),
+                                     (exp, "ΣP_{shaft,out}", "total expander shaft power output", True)):
+        shaft = [(leg, leg.quantities["shaft_power"]) for leg, _ in group if "shaft_power" in leg.quantities]
+        missing = [leg.name for leg, _ in group if "shaft_power" not in leg.quantities]
+        if shaft and missing:
+            what += f" — {PARTIAL} no mechanical efficiency for {', '.join(missing)}, not included"
+        total(sym, what, shaft, negate)
     return tuple(out)
 
 
