@@ -15,7 +15,7 @@ from dataclasses import dataclass
 from ._flowpath import Eos, Point, TwoPhaseError, polytropic_path, solve_T
 from .calc import Calc, Term
 from .errors import PhysicsError
-from .gas import Gas, State
+from .gas import R_U, Gas, State
 from .processes import LegResult
 
 __all__ = ["Ctx", "MeasuredEndError", "machine", "heat_exchanger", "throttle", "reversible"]
@@ -92,7 +92,8 @@ def machine(ctx: Ctx, name: str, process: str, i: int, s1: State, P2: float, eta
     s2, s2s, eta_p, eta_s, path, more = fn(ctx, comp, i, s1, P2, r, eta_p, eta_s, T2_measured, facts)
     calcs += more
     gas = ctx.gas
-    calcs += _h_calcs(gas, [(str(i), s1), (str(j), s2), (f"{j}s", s2s)])
+    calcs += _h_calcs(gas, [(str(i), s1), (str(j), s2)])
+    calcs.append(Calc(f"h_{j}s", s2s.h, "J/kg", f"h(P_{j}, s_{i})", gas.eos_method, note="isentropic end state"))
     w = s2.h - s1.h
     Hs = s2s.h - s1.h
     W = Calc("w_in", w, "J/kg", "{h2} − {h1}", "flow.firstlaw_adiabatic",
@@ -205,7 +206,7 @@ def _machine_real(ctx, comp, i, s1, P2, r, eta_p, eta_s, T2m, facts):
     p1 = eos.pt(s1.P, s1.T)
     calcs = []
     f0 = gas.flashes
-    R = 8.314462618 / gas.M
+    R = R_U / gas.M
     if eta_p is not None:
         p2, path, steps = polytropic_path(eos, p1, P2, eta_p)
         T2 = p2.state.T

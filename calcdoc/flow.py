@@ -14,7 +14,7 @@ from ._flowjob import LegOptions, Staging, problem_at, read_options
 from ._flowlegs import Ctx, MeasuredEndError, heat_exchanger, machine, reversible, throttle
 from ._flowpath import Eos, TwoPhaseError
 from .calc import Calc, Term
-from .engine import _basis, make_gas, saturation_near, site_calcs, software_versions
+from .engine import job_basis, make_gas, saturation_near, site_calcs, software_versions
 from .errors import JobError, PhysicsError
 from .gas import RealGas, State
 from .jobfile import Job, LegSpec
@@ -93,7 +93,7 @@ def run_flow(job: Job) -> FlowResults:
     records = tuple(StateRecord(k + 1, str(k + 1), st, V_dot=ctx.m_dot * st.v)
                     for k, st in enumerate([s1] + [leg.end for leg in legs]))
     totals = _totals(legs)
-    basis = _basis(job, gas)
+    basis = job_basis(job, gas)
     basis["flow"] = {"standard": None if job.start.standard_volume_flow is None else {
         "pressure": {"value": job.start.standard_pressure.si, "unit": "Pa"},
         "temperature": {"value": job.start.standard_temperature.si, "unit": "K"}}}
@@ -211,8 +211,6 @@ def _drop(job: Job, drop, i: int, P1: float) -> tuple[float, Calc | None]:
 
 def _train(job, ctx, leg, st: Staging, N, i, s, P_out, eta_p, eta_s, eta_m) -> list[LegResult]:
     d = st.drop
-    if st.T_cool.si > 0 and N > 1:
-        pass
     rcalc = stage_ratio_calc(s.P, P_out, N, d.fraction, d.absolute)
     Ps = suction_pressures(s.P, rcalc.value, N, d.fraction, d.absolute)
     out: list[LegResult] = []
