@@ -12,13 +12,22 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from ._flowpath import Eos, Point, polytropic_path, solve_T
+from ._flowpath import Eos, Point, TwoPhaseError, polytropic_path, solve_T
 from .calc import Calc, Term
 from .errors import PhysicsError
-from .gas import Gas, State
+from .gas import R_U, Gas, State
 from .processes import LegResult
 
-__all__ = ["Ctx", "machine", "heat_exchanger", "throttle", "reversible"]
+__all__ = ["Ctx", "MeasuredEndError", "machine", "heat_exchanger", "throttle", "reversible"]
+
+
+class MeasuredEndError(PhysicsError):
+    """A measured end temperature that no adiabatic machine of this kind can reach (the engine points
+    at the leg's end temperature)."""
+
+    def __init__(self, found: str, valid: str):
+        self.valid = valid
+        super().__init__(found)
 
 PATH_POINTS = 8
 
@@ -83,7 +92,8 @@ def machine(ctx: Ctx, name: str, process: str, i: int, s1: State, P2: float, eta
     s2, s2s, eta_p, eta_s, path, more = fn(ctx, comp, i, s1, P2, r, eta_p, eta_s, T2_measured, facts)
     calcs += more
     gas = ctx.gas
-    calcs += _h_calcs(gas, [(str(i), s1), (str(j), s2), (f"{j}s", s2s)])
+    calcs += _h_calcs(gas, [(str(i), s1), (str(j), s2)])
+    calcs.append(Calc(f"h_{j}s", s2s.h, "J/kg", f"h(P_{j}, s_{i})", gas.eos_method, note="isentropic end state"))
     w = s2.h - s1.h
     Hs = s2s.h - s1.h
     W = Calc("w_in", w, "J/kg", "{h2} − {h1}", "flow.firstlaw_adiabatic",
@@ -142,6 +152,7 @@ def _machine_ideal(ctx, comp, i, s1, P2, r, eta_p, eta_s, T2m, facts):
                           "flow.eta_s", {"T1": T1t, "T2s": Term(f"T_{j}s", T2s, "K"), "eta": et}))
     else:
         T2 = T2m
+        _check_measured(comp, P2, T1, T2, T2s)
         calcs.append(Calc(f"T_{j}", T2, "K", "{T2}", "input", {"T2": _t("T", j, T2, "K")}, note="measured"))
     s2, s2s = gas.state_PT(P2, T2), gas.state_PT(P2, T2s)
     if eta_s is None:
@@ -165,6 +176,25 @@ def _machine_ideal(ctx, comp, i, s1, P2, r, eta_p, eta_s, T2m, facts):
     return s2, s2s, epc, eps, path, calcs
 
 
+def _check_measured(comp: bool, P2: float, T1: float, T2: float, T2s: float) -> None:
+    """Refuse a measured end temperature that would need an efficiency outside (0, 1]: a compressor
+    discharges above its isentropic end temperature; an expander ends between it and its inlet."""
+    c = lambda T: f"{T - 273.15:.4g} °C"   # noqa: E731
+    if comp and T2 < T2s:
+        raise MeasuredEndError(
+            f"the measured end temperature {c(T2)} is below the isentropic end temperature T2s = {c(T2s)} at "
+            f"{P2 / 1e3:.6g} kPa: it would need an efficiency above 1",
+            f"a compressor's end temperature T2 must be above the isentropic T2s = {c(T2s)}; check the measured "
+            "temperature and the end pressure")
+    if not comp and not (T2s <= T2 < T1):
+        where = "below the isentropic end temperature" if T2 < T2s else "at or above the inlet temperature"
+        raise MeasuredEndError(
+            f"the measured end temperature {c(T2)} is {where} (T2s = {c(T2s)} at {P2 / 1e3:.6g} kPa, "
+            f"T1 = {c(T1)}): no efficiency from 0 to 1 gives it",
+            f"an expander's end temperature lies in T2s ≤ T2 ≤ T1, from {c(T2s)} to below {c(T1)}; check the "
+            "measured temperature and the end pressure")
+
+
 def _isentropic_end(ctx: Ctx, s1: State, P2: float, T_guess: float) -> Point:
     return solve_T(ctx.eos, P2, T_guess, "s", s1.s, f"the start entropy s = {s1.s:.6g} J/(kg K)")
 
@@ -176,7 +206,7 @@ def _machine_real(ctx, comp, i, s1, P2, r, eta_p, eta_s, T2m, facts):
     p1 = eos.pt(s1.P, s1.T)
     calcs = []
     f0 = gas.flashes
-    R = 8.314462618 / gas.M
+    R = R_U / gas.M
     if eta_p is not None:
         p2, path, steps = polytropic_path(eos, p1, P2, eta_p)
         T2 = p2.state.T
@@ -200,6 +230,7 @@ def _machine_real(ctx, comp, i, s1, P2, r, eta_p, eta_s, T2m, facts):
             p2 = solve_T(eos, P2, T_guess, "h", h2, f"h = {h2:.6g} J/kg")
             calcs.append(Calc(f"T_{j}", p2.state.T, "K", f"T(P_{j}, h_{j})", "eos.real"))
         else:
+            _check_measured(comp, P2, s1.T, T2m, p2s.state.T)
             p2 = eos.pt(P2, T2m)
             calcs.append(Calc(f"T_{j}", T2m, "K", "{T2}", "input", {"T2": _t("T", j, T2m, "K")}, note="measured"))
         eta_p, path, steps = _eta_p_from_end(ctx, comp, p1, p2, p2s)
@@ -261,7 +292,8 @@ def _eta_p_from_end(ctx: Ctx, comp: bool, p1: Point, p2: Point, p2s: Point) -> t
         raise PhysicsError("the polytropic efficiency of the measured end state did not converge")
     if b > 1.0 + 1e-9 or abs(gb) > 1e-3:
         raise PhysicsError(f"no polytropic efficiency up to 1 reaches the end state (T = {s2.T:.6g} K): the end "
-                           "temperature is at or below the isentropic one")
+                           + ("temperature is at or below the isentropic one" if comp else
+                              "temperature is outside T2s ≤ T2 ≤ T1 (isentropic end to inlet)"))
     return b, path_b, steps_b
 
 
@@ -322,6 +354,11 @@ def throttle(ctx: Ctx, name: str, i: int, s1: State, P2: float) -> LegResult:
         s2 = ctx.gas.state_PT(P2, s1.T)
         path = [s1] + [ctx.gas.state_PT(P, s1.T) for P in _path_P(s1.P, P2, 4)] + [s2]
         note = "ideal gas: enthalpy depends on temperature only, so the temperature does not change"
+    elif ctx.gas.pure:
+        # pure fluid: the HmassP flash gives single-phase and two-phase outlets alike
+        path = [s1] + [ctx.gas.state_Ph(P, s1.h) for P in _path_P(s1.P, P2, 4) + [P2]]
+        s2 = path[-1]
+        note = "T at P_2 with h_2 = h_1 (equation of state, (h, P) flash)"
     else:
         path, T = [s1], s1.T
         for P in _path_P(s1.P, P2, 4) + [P2]:
@@ -330,15 +367,24 @@ def throttle(ctx: Ctx, name: str, i: int, s1: State, P2: float) -> LegResult:
             path.append(p.state)
         s2 = path[-1]
         note = "T at P_2 with h_2 = h_1 (equation of state)"
+    wet = s2.quality is not None
+    if wet:
+        note = "saturation temperature at P_2: the outlet is two-phase"
     calcs = [Calc(f"h_{j}", s1.h, "J/kg", "{h1}", "flow.throttle", {"h1": _t("h", i, s1.h, "J/kg")},
                   note="adiabatic, no work: enthalpy is conserved"),
              Calc(f"T_{j}", s2.T, "K", f"T(P_{j}, h_{j})", ctx.gas.eos_method, note=note)]
     dT = Calc("ΔT", s2.T - s1.T, "K", "{T2} − {T1}", "flow.throttle",
               {"T2": _t("T", j, s2.T, "K"), "T1": _t("T", i, s1.T, "K")}, difference=True)
     calcs.append(dT)
+    facts_wet = []
+    if wet:
+        calcs.append(Calc(f"x_{j}", s2.quality, "", f"x(P_{j}, h_{j})", ctx.gas.eos_method,
+                          note="vapour quality: mass fraction of vapour in the two-phase outlet"))
+        facts_wet.append(f"The outlet is two-phase: vapour quality x = {s2.quality:.4f} at the saturation "
+                         f"temperature {s2.T - 273.15:.4g} °C.")
     zero_w = Calc("w_in", 0.0, "J/kg", "0", "flow.throttle")
     zero = Calc("Q̇", 0.0, "W", "0", "flow.throttle")
-    facts = [f"Throttle: the temperature changes by {s2.T - s1.T:+.4g} K (Joule–Thomson effect)."]
+    facts = [f"Throttle: the temperature changes by {s2.T - s1.T:+.4g} K (Joule–Thomson effect)."] + facts_wet
     return LegResult(name, "throttle", i, s1, s2, {"work_in": zero_w, "duty": zero,
                                                    "power": Calc("P_gas", 0.0, "W", "0", "flow.throttle"), "dT": dT},
                      tuple(calcs), tuple(path), (), tuple(facts))
@@ -370,6 +416,10 @@ def reversible(ctx: Ctx, name: str, process: str, i: int, s1: State, P2: float, 
             W = Calc("w_in", wv, "J/kg", "{h2} − {h1}", "flow.firstlaw_adiabatic",
                      {"h2": _t("h", j, s2.h, "J/kg"), "h1": _t("h", i, s1.h, "J/kg")}, note="= ∫v·dP at constant s")
     elif process == "isothermal":
+        if not ctx.ideal and ctx.eos.side(s1.P, s1.T) != ctx.eos.side(P2, s1.T):
+            AS = ctx.gas.AS   # the saturation pressure at T_1 lies between the ends
+            AS.update(ctx.gas._CP.QT_INPUTS, 1.0, s1.T)
+            raise TwoPhaseError("the isothermal path", AS.p(), s1.T)
         pts = [ctx.state(P, s1.T) for P in _path_P(s1.P, P2)]
         s2 = ctx.state(P2, s1.T)
         if ctx.ideal:

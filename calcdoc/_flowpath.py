@@ -27,7 +27,7 @@ from dataclasses import dataclass
 from .errors import PhysicsError
 from .gas import _PHASES, RealGas, State
 
-__all__ = ["Eos", "Point", "polytropic_path", "solve_T"]
+__all__ = ["Eos", "Point", "TwoPhaseError", "polytropic_path", "solve_T"]
 
 #: Local error per step in enthalpy, relative to the estimated enthalpy change of the path.
 STEP_RTOL = 2e-6
@@ -39,6 +39,16 @@ _A = ((), (1 / 5,), (3 / 40, 9 / 40), (44 / 45, -56 / 15, 32 / 9),
       (9017 / 3168, -355 / 33, 46732 / 5247, 49 / 176, -5103 / 18656),
       (35 / 384, 0.0, 500 / 1113, 125 / 192, -2187 / 6784, 11 / 84))
 _E = (71 / 57600, 0.0, -71 / 16695, 71 / 1920, -17253 / 339200, 22 / 525, -1 / 40)
+
+
+class TwoPhaseError(PhysicsError):
+    """A pure fluid's path enters the two-phase region at the pressure P [Pa], where the saturation
+    temperature is T_sat [K]; the engine points at the leg's end target."""
+
+    def __init__(self, what: str, P: float, T_sat: float):
+        self.P, self.T_sat = P, T_sat
+        super().__init__(f"{what} enters the two-phase region at P = {P / 1e3:.6g} kPa (saturation temperature "
+                         f"{T_sat - 273.15:.4g} °C at that pressure)")
 
 
 @dataclass(frozen=True)
@@ -103,6 +113,38 @@ class Eos:
             return T >= self.T_cricondenbar
         dew = self.dew_temperature(P)
         return dew is not None and T > dew
+
+    def saturation(self, P: float) -> tuple[float, dict, dict] | None:
+        """Pure fluids below the critical pressure: (T_sat, saturated liquid, saturated vapour), each
+        a dict of h, s, v; None for a mixture, at or above the critical pressure, or when unknown."""
+        gas = self.gas
+        if self.mixture or not P < gas.Pc:
+            return None
+        out = []
+        try:
+            for Q in (0.0, 1.0):
+                gas.flashes += 1
+                self.AS.update(self.CP.PQ_INPUTS, P, Q)
+                out.append({"h": self.AS.hmass(), "s": self.AS.smass(), "v": 1.0 / self.AS.rhomass(), "T": self.AS.T()})
+        except ValueError:
+            return None
+        return out[1]["T"], out[0], out[1]
+
+    def side(self, P: float, T: float) -> int:
+        """Pure fluids: +1 on the vapour (or supercritical) side of the saturation line, −1 on the
+        liquid side; 0 for mixtures."""
+        gas = self.gas
+        if self.mixture:
+            return 0
+        if T >= gas.Tc:
+            return 1
+        if P >= gas.Pc:
+            return -1
+        Ts = gas.dew_temperature(P)
+        gas.flashes += 1
+        if Ts is None or abs(T - Ts) < 1e-4:
+            return 0          # on the line (within 0.1 mK): no single-phase flash there
+        return 1 if T > Ts else -1
 
     # -- flashes ----------------------------------------------------------------------------------
     def pt(self, P: float, T: float) -> Point:
@@ -172,7 +214,11 @@ def solve_T(eos: Eos, P: float, T0: float, prop: str, target: float, what: str) 
     its residual corresponds to less than 1e-7 K)."""
     T = T0
     for _ in range(60):
-        p = eos.pt(P, T)
+        try:
+            p = eos.pt(P, T)
+        except PhysicsError:
+            _raise_if_wet(eos, P, prop, target, what)
+            raise
         st = p.state
         if prop == "h":
             r, slope = st.h - target, p.cp
@@ -181,12 +227,24 @@ def solve_T(eos: Eos, P: float, T0: float, prop: str, target: float, what: str) 
         else:
             r, slope = st.v - target, p.vT
         if slope <= 0:
+            _raise_if_wet(eos, P, prop, target, what)
             raise PhysicsError(f"no single-phase state at P = {P / 1e3:.6g} kPa gives {what}")
         dT = -r / slope
         if abs(dT) < 1e-7:
             return p
         T = T + max(-0.3 * T, min(0.3 * T, dT))
+    _raise_if_wet(eos, P, prop, target, what)
     raise PhysicsError(f"the state at P = {P / 1e3:.6g} kPa with {what} did not converge")
+
+
+def _raise_if_wet(eos: Eos, P: float, prop: str, target: float, what: str) -> None:
+    """A pure fluid whose target lies between the saturated liquid and vapour values at P is wet."""
+    sat = eos.saturation(P)
+    if sat is None:
+        return
+    T_sat, liq, vap = sat
+    if min(liq[prop], vap[prop]) <= target <= max(liq[prop], vap[prop]):
+        raise TwoPhaseError(f"the state with {what}", P, T_sat)
 
 
 def polytropic_path(eos: Eos, p1: Point, P2: float, eta_p: float, rtol: float = STEP_RTOL
@@ -205,8 +263,13 @@ def polytropic_path(eos: Eos, p1: Point, P2: float, eta_p: float, rtol: float = 
     e = 1.0 / eta_p if span > 0 else eta_p
     sgn = 1.0 if span > 0 else -1.0
 
-    def f(xx: float, T: float) -> tuple[float, Point]:
-        p = eos.pt(math.exp(xx), T)
+    side0 = eos.side(s1.P, s1.T)
+
+    def f(xx: float, T: float) -> tuple[float, Point | None]:
+        P = math.exp(xx)
+        if side0 and eos.side(P, T) != side0:
+            return 0.0, None      # across the saturation line: the step is rejected
+        p = eos.pt(P, T)
         st = p.state
         return st.P * (st.v * (e - 1.0) + T * p.vT) / p.cp, p
 
@@ -233,8 +296,17 @@ def polytropic_path(eos: Eos, p1: Point, P2: float, eta_p: float, rtol: float = 
         for i in range(1, 7):
             y = T + h * sum(a * k for a, k in zip(_A[i], ks))
             k, p = f(x + _C[i] * h, y)
+            if p is None:
+                break
             ks.append(k)
             pts.append(p)
+        if len(pts) < 6:
+            # a stage state lies across the saturation line: halve the step until the path meets it
+            if abs(h) < 1e-7 * abs(span):
+                P = math.exp(x)
+                raise TwoPhaseError("the path", P, eos.gas.dew_temperature(P) or T)
+            h *= 0.5
+            continue
         T_new = T + h * sum(a * k for a, k in zip(_A[6], ks[:6]))
         err = abs(h * sum(a * k for a, k in zip(_E, ks))) * max(cp, pts[-1].cp)
         if err <= tol_h:

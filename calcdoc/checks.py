@@ -51,6 +51,8 @@ class Quantity:
     systems: tuple[str, ...] = BOTH
     symbol: str = ""
     title: str = ""
+    sign: float = 1.0             # −1: the leg quantity ``attr`` with its sign reversed (the trade's sense)
+    on: tuple[str, ...] = ()      # processes where it exists by default (no ``at``); () = every leg
 
     @property
     def unit(self) -> str:
@@ -61,8 +63,8 @@ class Quantity:
         return {"temperature": "temperature_difference", "pressure": "pressure_difference"}.get(self.kind, self.kind)
 
 
-def _q(name, kind, scope, attr, systems=BOTH, symbol="", title=""):
-    return Quantity(name, kind, scope, attr, systems, symbol or attr, title or name.replace("_", " "))
+def _q(name, kind, scope, attr, systems=BOTH, symbol="", title="", sign=1.0, on=()):
+    return Quantity(name, kind, scope, attr, systems, symbol or attr, title or name.replace("_", " "), sign, on)
 
 
 QUANTITIES: dict[str, Quantity] = {q.name: q for q in (
@@ -82,6 +84,10 @@ QUANTITIES: dict[str, Quantity] = {q.name: q for q in (
     _q("n", "dimensionless", "leg", "n", title="polytropic exponent"),
     _q("W_by_gas", "energy", "leg", "W_by_gas", ("closed",), symbol="W", title="work done by the gas"),
     _q("Q_to_gas", "energy", "leg", "Q_to_gas", ("closed",), symbol="Q", title="heat added to the gas"),
+    _q("work_on_gas", "energy", "leg", "W_by_gas", ("closed",), symbol="W_on", title="work done on the gas",
+       sign=-1.0),
+    _q("heat_from_gas", "energy", "leg", "Q_to_gas", ("closed",), symbol="Q_out", title="heat removed from the gas",
+       sign=-1.0),
     _q("dU", "energy", "leg", "dU", ("closed",), symbol="ΔU", title="change of internal energy"),
     _q("dH", "energy", "leg", "dH", ("closed",), symbol="ΔH", title="change of enthalpy"),
     _q("dS", "entropy", "leg", "dS", ("closed",), symbol="ΔS", title="change of entropy"),
@@ -93,10 +99,25 @@ QUANTITIES: dict[str, Quantity] = {q.name: q for q in (
     _q("duty", "power", "leg", "duty", ("flow",), symbol="Q̇"),
     _q("power", "power", "leg", "power", ("flow",), symbol="P_gas", title="gas power"),
     _q("shaft_power", "power", "leg", "shaft_power", ("flow",), symbol="P_shaft", title="shaft power"),
-    # train totals over every leg (one driver for a staged machine, the total cooling load)
-    _q("total_power", "power", "total", "ΣP_gas", ("flow",), symbol="ΣP_gas", title="total gas power"),
-    _q("total_shaft_power", "power", "total", "ΣP_shaft", ("flow",), symbol="ΣP_shaft", title="total shaft power"),
-    _q("total_duty", "power", "total", "ΣQ̇", ("flow",), symbol="ΣQ̇", title="net heat duty of the train"),
+    # the same in the trade's sense: heat removed by a cooler, heat added by a heater, power delivered
+    # by an expander, each positive
+    _q("cooling_duty", "power", "leg", "duty", ("flow",), symbol="Q̇_cool", title="cooling duty", sign=-1.0,
+       on=("cooler",)),
+    _q("heating_duty", "power", "leg", "duty", ("flow",), symbol="Q̇_heat", title="heating duty", on=("heater",)),
+    _q("power_output", "power", "leg", "power", ("flow",), symbol="P_out", title="gas power output", sign=-1.0,
+       on=("expander",)),
+    _q("shaft_power_output", "power", "leg", "shaft_power", ("flow",), symbol="P_{shaft,out}",
+       title="shaft power output", sign=-1.0, on=("expander",)),
+    # train totals in the trade's sense, each positive (one driver for a staged machine, the cooling load)
+    _q("total_power", "power", "total", "ΣP_comp", ("flow",), symbol="ΣP_comp", title="total compressor gas power"),
+    _q("total_power_output", "power", "total", "ΣP_out", ("flow",), symbol="ΣP_out",
+       title="total expander gas power output"),
+    _q("total_cooling_duty", "power", "total", "ΣQ̇_cool", ("flow",), symbol="ΣQ̇_cool", title="total cooling duty"),
+    _q("total_heating_duty", "power", "total", "ΣQ̇_heat", ("flow",), symbol="ΣQ̇_heat", title="total heating duty"),
+    _q("total_shaft_power", "power", "total", "ΣP_shaft", ("flow",), symbol="ΣP_shaft",
+       title="total compressor shaft power"),
+    _q("total_shaft_power_output", "power", "total", "ΣP_{shaft,out}", ("flow",), symbol="ΣP_{shaft,out}",
+       title="total expander shaft power output"),
 )}
 
 #: Other spellings engineers write, mapped to the names above.
@@ -105,6 +126,30 @@ ALIASES = {
     "h": "enthalpy", "s": "entropy", "compressibility": "Z", "V": "volume", "V_dot": "volume_flow",
     "work_by_gas": "W_by_gas", "heat_to_gas": "Q_to_gas", "polytropic_exponent": "n",
     "polytropic_efficiency": "eta_p", "isentropic_efficiency": "eta_s",
+}
+
+
+#: Flow processes that exchange heat and work along a reversible path: a quantity in the trade's sense
+#: (cooling_duty, power_output) also applies there when a limit names the leg.
+REVERSIBLE = ("polytropic", "isentropic", "isothermal")
+
+
+def applies(q: Quantity, process: str) -> bool:
+    """Whether a leg of this process can carry the quantity (only restricted for the trade's quantities)."""
+    return not q.on or process in q.on or process in REVERSIBLE
+
+
+def _applies_text(q: Quantity) -> str:
+    return f"{q.name} applies to {' and '.join(p + ' legs' for p in q.on)} (and reversible flow legs)"
+
+
+#: Signed quantities (work and heat INTO the gas positive, closed-system work BY the gas positive) and
+#: the quantity in the trade's sense to name when a limit meets a negative value.
+SIGNED = {
+    "duty": "cooling_duty", "power": "power_output", "shaft_power": "shaft_power_output",
+    "W_by_gas": "work_on_gas", "Q_to_gas": "heat_from_gas", "work_on_gas": "W_by_gas", "heat_from_gas": "Q_to_gas",
+    "cooling_duty": "heating_duty", "heating_duty": "cooling_duty", "power_output": "power",
+    "shaft_power_output": "shaft_power",
 }
 
 
@@ -134,7 +179,21 @@ class Places:
     def __init__(self, job: Job):
         self.job = job
         self.legs = [leg.name for leg in job.legs]
-        self.labels = [str(i + 1) for i in range(len(job.legs) + 1)]
+        self.procs = {leg.name: leg.process for leg in job.legs}
+        states = 1
+        for leg in job.legs:
+            # a staged compressor becomes "<leg>, stage k" and "<leg>, intercooler k" legs at run time:
+            # accept the names and state labels up to what its staging can produce (checked again
+            # against the computed legs and states when the limits are judged)
+            N = _most_stages(leg)
+            for k in range(1, N + 1 if N > 1 else 1):
+                self.legs.append(f"{leg.name}, stage {k}")
+                self.procs[self.legs[-1]] = "compressor"
+                if k < N:
+                    self.legs.append(f"{leg.name}, intercooler {k}")
+                    self.procs[self.legs[-1]] = "cooler"
+            states += 2 * N - 1
+        self.labels = [str(i + 1) for i in range(states)]
 
     def valid(self) -> str:
         return (f"legs: {', '.join(repr(n) for n in self.legs)}; states: {', '.join(self.labels)}")
@@ -145,6 +204,10 @@ class Places:
                 add(node, f"{q.name} is a total over the whole train and takes no 'at'", "remove 'at'")
                 continue
             if name in self.legs:
+                proc = self.procs[name]
+                if not applies(q, proc) and not any(self.procs[n] in q.on for n in self.legs
+                                                    if n.startswith(f"{name}, intercooler ")):
+                    add(node, f"'{name}' is a {proc} leg", f"{_applies_text(q)}; name such a leg")
                 continue
             if name in self.labels:
                 if q.scope in ("leg", "ratio", "end"):
@@ -154,6 +217,20 @@ class Places:
             close = difflib.get_close_matches(name, self.legs + self.labels, n=1, cutoff=0.6)
             hint = f"did you mean '{close[0]}'? " if close else ""
             add(node, f"this job has no leg or state named '{name}'", f"{hint}{self.valid()}")
+
+
+def _most_stages(leg) -> int:
+    """The most stages a compressor leg's staging block can give (1 when it has none)."""
+    from ._flowjob import DEFAULT_MAX_STAGES
+
+    node = leg.options.get("staging") if leg.process == "compressor" else None
+    if node is None or node.kind != "map":
+        return 1
+    for key in ("stages", "max_stages"):
+        v = node.value.get(key)
+        if v is not None and isinstance(v.value, int) and not isinstance(v.value, bool):
+            return max(1, min(v.value, 12))
+    return DEFAULT_MAX_STAGES
 
 
 def quantity_problem(q: Quantity | None, name: str, system: str) -> tuple[str, str] | None:
@@ -331,6 +408,9 @@ def locations(job: Job, results, q: Quantity, at: tuple[str, ...], where: tuple[
         c = leg.quantities.get(q.attr)
         if c is None or c.value is None or not math.isfinite(c.value):
             return None, leg.name
+        if q.sign < 0:
+            c = Calc(f"{q.symbol} ({leg.name})", -c.value, c.unit, "−{x}", "sign.trade",
+                     {"x": Term(c.symbol, c.value, c.unit)}, note=f"{q.title}: {c.symbol} with its sign reversed")
         return c, leg.name
 
     out: list[tuple[str, Calc]] = []
@@ -338,6 +418,9 @@ def locations(job: Job, results, q: Quantity, at: tuple[str, ...], where: tuple[
         found = [c for c in getattr(results, "totals", ()) if c.symbol == q.attr]
         if not found:
             fail(f"this job has no {q.title}", "name a quantity this job computes")
+        if "partial:" in found[0].note:
+            fail(f"the {q.title} is partial ({found[0].note.split('partial:')[1].strip()})",
+                 "give every machine a mechanical_efficiency, or limit each leg's shaft_power")
         return [("train", found[0])]
     if not at:
         if q.scope in ("state", "record"):
@@ -347,18 +430,28 @@ def locations(job: Job, results, q: Quantity, at: tuple[str, ...], where: tuple[
                     out.append((f"state {rec.label}", c))
         else:
             for leg in results.legs:
+                if q.on and leg.process not in q.on:
+                    continue
                 c, text = at_leg(leg)
                 if c is not None:
                     out.append((text, c))
         if not out:
+            if q.on:
+                fail(f"no leg of this job has {q.name} (it applies to {' and '.join(p + ' legs' for p in q.on)})",
+                     f"legs and their processes: {'; '.join(f'{leg.name}: {leg.process}' for leg in results.legs)}")
             fail(f"no leg of this job has {q.name}",
                  f"legs and their quantities: {_leg_quantities(results)}")
         return out
     for name in at:
         # a compressor leg split into stages by the job's staging block answers for every stage
         stages = [n for n in legs if n.startswith(f"{name}, stage ")] if name not in legs else [name]
+        if q.on and stages and not any(applies(q, legs[n].process) for n in stages):
+            # a trade quantity of coolers named on a staged compressor: its intercoolers
+            stages = [n for n in legs if n.startswith(f"{name}, intercooler ")] or stages
         if stages:
             for stage in stages:
+                if not applies(q, legs[stage].process):
+                    fail(f"'{stage}' is a {legs[stage].process} leg", f"{_applies_text(q)}; name such a leg")
                 c, text = at_leg(legs[stage])
                 if c is None:
                     leg = legs[stage]
@@ -370,6 +463,9 @@ def locations(job: Job, results, q: Quantity, at: tuple[str, ...], where: tuple[
             if c is None:
                 fail(f"state {name} has no {q.name}", "name another quantity")
             out.append((f"state {name}", c))
+        elif name in recs:
+            fail(f"{q.name} is a quantity of a leg, but '{name}' is a state label",
+                 f"name a leg: {', '.join(repr(n) for n in legs)}")
         else:
             fail(f"this job has no leg or state named '{name}' that has {q.name}",
                  f"legs: {', '.join(repr(n) for n in legs)}; states: {', '.join(recs)}")
@@ -412,6 +508,7 @@ def evaluate(job: Job, results, specs: list[LimitSpec] | None = None) -> tuple:
     out = []
     for spec in specs:
         locs = locations(job, results, spec.quantity, spec.at, spec.at_where, f"{spec.path}.at" if spec.at else spec.path)
+        _refuse_negative(job, spec, locs)
         for kind in ("max", "min"):
             if getattr(spec, kind) is None:
                 continue
@@ -423,6 +520,31 @@ def evaluate(job: Job, results, specs: list[LimitSpec] | None = None) -> tuple:
                 text = where if len(locs) == 1 else f"{where}, governing of {len(locs)}"
                 out.append(judge(spec, kind, text, c))
     return tuple(out)
+
+
+def _refuse_negative(job: Job, spec: LimitSpec, locs: list[tuple[str, Calc]]) -> None:
+    """A limit on a signed quantity that meets a negative value is misread input: a ``max`` on a
+    negative cooler duty always passes. Raise a JobError at the limit naming the quantity to use."""
+    q = spec.quantity
+    if q.name not in SIGNED and q.scope != "total":
+        return
+    bad = [(where, c) for where, c in locs if c.value < 0]
+    if not bad:
+        return
+    where, c = bad[0]
+    conv = ("work done BY the gas and heat added TO the gas are positive" if "closed" in q.systems and "flow" not in
+            q.systems else "shaft work and heat INTO the gas are positive")
+    lim = spec.max or spec.min
+    entered = f" {'max' if spec.max else 'min'} {lim.entered}" if lim is not None else ""
+    instead = SIGNED.get(q.name)
+    found = (f"the limit '{spec.name}' ({q.name}{entered}) meets a negative value at {where} "
+             f"({c.value:.6g} {q.unit}): it is negative by the sign convention ({conv}), so a limit on it "
+             "does not mean what it says")
+    valid = (f"use quantity: {instead} ({QUANTITIES[instead].title}, positive there)" if instead else
+             "name a quantity that is positive at every place the limit applies to")
+    if not spec.at and instead:
+        valid += ", or name with 'at' the places where the value is positive"
+    raise JobError([Problem(job.name, spec.line, spec.col, f"{spec.path}.quantity", found, valid)])
 
 
 def with_checks(job: Job, results):

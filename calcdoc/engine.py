@@ -244,7 +244,7 @@ def compute(job: Job) -> Results:
     from .diagnose import ideal_condensation_warnings
 
     warnings += ideal_condensation_warnings(job, gas, legs, s1)
-    basis = _basis(job, gas)
+    basis = job_basis(job, gas)
     return Results(job, gas, "closed", mass, {}, tuple(records), tuple(legs), tuple(start_calcs), (),
                    tuple(warnings), basis, software_versions(), saturation=saturation_near(gas, legs))
 
@@ -259,7 +259,8 @@ def saturation_near(gas: Gas, legs) -> tuple | None:
     return None
 
 
-def _basis(job: Job, gas: Gas) -> dict:
+def job_basis(job: Job, gas: Gas) -> dict:
+    """The basis of the results: the gas model and the site atmosphere (for the JSON and the report)."""
     site = job.site
     return {
         "gas": {"model": gas.model, "description": gas.describe(), "molar_mass": {"value": gas.M, "unit": "kg/mol"},

@@ -11,10 +11,10 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from ._flowjob import LegOptions, Staging, problem_at, read_options
-from ._flowlegs import Ctx, heat_exchanger, machine, reversible, throttle
-from ._flowpath import Eos
+from ._flowlegs import Ctx, MeasuredEndError, heat_exchanger, machine, reversible, throttle
+from ._flowpath import Eos, TwoPhaseError
 from .calc import Calc, Term
-from .engine import _basis, make_gas, saturation_near, site_calcs, software_versions
+from .engine import job_basis, make_gas, saturation_near, site_calcs, software_versions
 from .errors import JobError, PhysicsError
 from .gas import RealGas, State
 from .jobfile import Job, LegSpec
@@ -23,6 +23,9 @@ from .results import Results, StateRecord
 from .staging import stage_ratio_calc, suction_pressures
 
 __all__ = ["FlowResults", "run_flow"]
+
+#: Marks the note of a shaft-power total that leaves out machines with no mechanical efficiency.
+PARTIAL = "partial:"
 
 #: A state closer than this to its dew (saturation) temperature gets a warning [K] (common practice).
 NEAR_DEW_K = 5.0
@@ -64,6 +67,13 @@ def run_flow(job: Job) -> FlowResults:
     for leg, opt in zip(job.legs, options):
         try:
             made, info = _leg(job, ctx, leg, opt, len(legs) + 1, s)
+        except TwoPhaseError as exc:
+            target = (leg.end.get("pressure") or leg.end.get("pressure_ratio") or leg.end.get("temperature"))
+            raise problem_at(job, target, f"leg '{leg.name}' ({leg.process}): {exc}",
+                             "this leg kind is computed for a single phase only: end it above the saturation "
+                             "pressure, start it warmer, or use a throttle (which gives a two-phase outlet)") from None
+        except MeasuredEndError as exc:
+            raise problem_at(job, leg.end["temperature"], f"leg '{leg.name}': {exc}", exc.valid) from None
         except PhysicsError as exc:
             raise JobError([job.problem(f"{leg.path}.end", f"leg '{leg.name}': {exc}",
                                         "check the end target, the efficiency and the gas against the start of "
@@ -73,12 +83,17 @@ def run_flow(job: Job) -> FlowResults:
         for res in made:
             warnings += _phase_warnings(ctx, f"Leg '{res.name}'", list(res.path), res.process in ("cooler", "throttle",
                                                                                                    "expander"))
+            if res.process == "throttle" and res.end.quality is not None:
+                e = res.end
+                warnings.append(f"Leg '{res.name}': the outlet is two-phase at P = {e.P / 1e3:.5g} kPa, saturation "
+                                f"temperature {e.T - 273.15:.4g} °C, vapour quality x = {e.quality:.4g}. "
+                                "Condensation: liquid leaves the throttle; check that what follows accepts it.")
             legs.append(res)
             s = res.end
     records = tuple(StateRecord(k + 1, str(k + 1), st, V_dot=ctx.m_dot * st.v)
                     for k, st in enumerate([s1] + [leg.end for leg in legs]))
     totals = _totals(legs)
-    basis = _basis(job, gas)
+    basis = job_basis(job, gas)
     basis["flow"] = {"standard": None if job.start.standard_volume_flow is None else {
         "pressure": {"value": job.start.standard_pressure.si, "unit": "Pa"},
         "temperature": {"value": job.start.standard_temperature.si, "unit": "K"}}}
@@ -196,8 +211,6 @@ def _drop(job: Job, drop, i: int, P1: float) -> tuple[float, Calc | None]:
 
 def _train(job, ctx, leg, st: Staging, N, i, s, P_out, eta_p, eta_s, eta_m) -> list[LegResult]:
     d = st.drop
-    if st.T_cool.si > 0 and N > 1:
-        pass
     rcalc = stage_ratio_calc(s.P, P_out, N, d.fraction, d.absolute)
     Ps = suction_pressures(s.P, rcalc.value, N, d.fraction, d.absolute)
     out: list[LegResult] = []
@@ -262,15 +275,38 @@ def _with(res: LegResult, **kw) -> LegResult:
 
 
 def _totals(legs: list[LegResult]) -> tuple[Calc, ...]:
+    """Train totals in the trade's sense, each positive: the gas power of the compressions (legs with
+    work into the gas), the gas power output of the expansions, the heat removed (cooling duty) and
+    the heat added (heating duty), and the shaft power of the compressors (and of the expanders)
+    where mechanical efficiencies are given; a shaft total that leaves a machine out says so."""
     out = []
-    for key, sym, what in (("power", "ΣP_gas", "gas power"), ("shaft_power", "ΣP_shaft", "shaft power"),
-                           ("duty", "ΣQ̇", "heat duty")):
-        items = [(leg, leg.quantities[key]) for leg in legs if key in leg.quantities]
-        if not items or (key == "shaft_power" and not items):
-            continue
-        names = {f"x{k}": Term(c.symbol + f" ({leg.name})", c.value, c.unit) for k, (leg, c) in enumerate(items)}
+
+    def pick(key: str, positive: bool):
+        return [(leg, leg.quantities[key]) for leg in legs if key in leg.quantities
+                and (leg.quantities[key].value > 0 if positive else leg.quantities[key].value < 0)]
+
+    def total(sym: str, note: str, items, negate: bool) -> None:
+        if not items:
+            return
+        names = {f"x{k}": Term(f"{c.symbol} ({leg.name})", c.value, c.unit) for k, (leg, c) in enumerate(items)}
         eq = " + ".join("{" + k + "}" for k in names)
-        out.append(Calc(sym, sum(c.value for _, c in items), "W", eq, "flow.total", names, note=f"total {what}"))
+        if negate:
+            eq = f"−({eq})" if len(names) > 1 else f"−{eq}"
+        value = sum(c.value for _, c in items)
+        out.append(Calc(sym, -value if negate else value, "W", eq, "flow.total", names, note=note))
+
+    comp, exp = pick("power", True), pick("power", False)
+    total("ΣP_comp", "total compressor gas power", comp, False)
+    total("ΣP_out", "total expander gas power output", exp, True)
+    total("ΣQ̇_cool", "total cooling duty (heat removed from the gas)", pick("duty", False), True)
+    total("ΣQ̇_heat", "total heating duty (heat added to the gas)", pick("duty", True), False)
+    for group, sym, what, negate in ((comp, "ΣP_shaft", "total compressor shaft power", False),
+                                     (exp, "ΣP_{shaft,out}", "total expander shaft power output", True)):
+        shaft = [(leg, leg.quantities["shaft_power"]) for leg, _ in group if "shaft_power" in leg.quantities]
+        missing = [leg.name for leg, _ in group if "shaft_power" not in leg.quantities]
+        if shaft and missing:
+            what += f" — {PARTIAL} no mechanical efficiency for {', '.join(missing)}, not included"
+        total(sym, what, shaft, negate)
     return tuple(out)
 
 

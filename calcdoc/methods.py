@@ -114,6 +114,9 @@ METHODS: dict[str, Method] = {
     "flow.shaft_power": Method("Shaft power from gas power and mechanical efficiency",
                                "P_shaft = P_gas/η_m (compressor);  P_shaft = P_gas·η_m (expander)",
                                ("dixon2014",)),
+    "sign.trade": Method("A signed quantity in the trade's sense: heat removed, work done on the gas, power "
+                         "delivered, each the signed value (work and heat INTO the gas positive) with its sign "
+                         "reversed", "X_out = −X_in", ("cengel2019",)),
     "flow.total": Method("Total over the legs of the train", "ΣX = X_1 + X_2 + …", ("cengel2019",)),
     "flow.pressure_drop": Method("Outlet pressure of a heat exchanger from its pressure drop",
                                  "P2 = P1·(1 − δ)  or  P2 = P1 − ΔP", ("cengel2019",)),

@@ -5,8 +5,6 @@ SI floats: pressures [Pa] absolute, temperatures [K].
 """
 from __future__ import annotations
 
-import math
-
 from .calc import Calc, Term
 
 __all__ = ["equal_stage_ratio", "stage_ratio_calc", "suction_pressures"]
@@ -79,6 +77,3 @@ def stage_ratio_calc(P_in: float, P_out: float, N: int, fraction: float | None, 
                     note="equal stage ratios; each intercooler loses the fraction δ_ic of its inlet pressure")
     return Calc("r_stage", r, "", "({Pout}/{Pin})^(1/{N})", "staging.ratio", ins, note="equal stage ratios")
 
-
-def ratio_is_equal(ratios: list[float]) -> bool:
-    return all(math.isclose(r, ratios[0], rel_tol=1e-9) for r in ratios)

@@ -55,7 +55,7 @@ def _num(x: float | None, sig: int = 5, strip: bool = False) -> str:
 def qty(value: float | None, si_unit: str, system: str, sig: int = 5, difference: bool = False,
         strip: bool = False) -> Markup:
     """A value with its unit in the report's unit system."""
-    if value is None:
+    if value is None or (isinstance(value, float) and math.isnan(value)):
         return Markup("—")
     v, u = units.display(value, si_unit, system, difference=difference)
     return Markup(num(v, sig, strip) + ("\u202f" + u if u else ""))
@@ -68,8 +68,9 @@ def unit_of(si_unit: str, system: str, difference: bool = False) -> str:
 
 
 def value_in(value: float | None, si_unit: str, system: str, sig: int = 5, difference: bool = False) -> Markup:
-    """Only the number of a value in the report's unit system (for table cells under a unit header)."""
-    if value is None:
+    """Only the number of a value in the report's unit system (for table cells under a unit header);
+    a missing value (None or NaN: not computed at this point) is "—"."""
+    if value is None or (isinstance(value, float) and math.isnan(value)):
         return Markup("—")
     v, _ = units.display(value, si_unit, system, difference=difference)
     return Markup(num(v, sig))
