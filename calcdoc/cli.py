@@ -174,17 +174,24 @@ def _run(args) -> int:
 def _output_groups(paths: list[str]) -> list[list[int]]:
     """Jobs of a batch grouped by the output names their calc number and revision give: a group runs in
     one worker, in file order, and only its first job that writes may write (see ``_run_one``), so that
-    no job of the batch overwrites another's report. Jobs that do not load are groups of their own."""
-    from .jobfile import load
+    no job of the batch overwrites another's report. Only the title block is read here (safe YAML, with
+    its limits; no validation): a job that cannot be read is a group of its own and reports itself."""
+    from pathlib import Path
+
+    from ._yaml import decode, load
     from .report.render import safe_stem
 
     groups: dict[str, list[int]] = {}
     for k, path in enumerate(paths):
+        stem = f"\0{k}"
         try:
-            t = load(path).calc
-            stem = safe_stem(t.number, t.revision)
-        except JobError:
-            stem = f"\0{k}"
+            calc = load(decode(Path(path).read_bytes(), path), path).value.get("calc")
+            if calc is not None and calc.kind == "map":
+                number, revision = calc.value.get("number"), calc.value.get("revision")
+                if number is not None and revision is not None:
+                    stem = safe_stem(str(number.value), str(revision.value))
+        except (JobError, OSError):
+            pass
         groups.setdefault(stem, []).append(k)
     return list(groups.values())
 

@@ -15,11 +15,23 @@ from .. import units
 PALETTE = ["#1f3b5a", "#b4532a", "#5b7b3a", "#7a3b6e", "#c08a1e", "#56606b", "#2f7f7a", "#8c2f2f"]
 
 
+class _Figures:
+    """Figures without pyplot (no global figure state, a lighter import): ``subplots`` and ``close``."""
+
+    @staticmethod
+    def subplots(*args, figsize, **kwargs):
+        from matplotlib.figure import Figure
+
+        fig = Figure(figsize=figsize)
+        return fig, fig.subplots(*args, **kwargs)
+
+    @staticmethod
+    def close(fig) -> None:
+        fig.clear()
+
+
 def _pyplot():
     import matplotlib
-
-    matplotlib.use("Agg")
-    import matplotlib.pyplot as plt
 
     matplotlib.rcParams.update({
         "svg.hashsalt": "calcdoc",
@@ -37,7 +49,7 @@ def _pyplot():
         "lines.linewidth": 1.6,
         "path.simplify": False,
     })
-    return plt
+    return _Figures
 
 
 def _svg(fig) -> str:
