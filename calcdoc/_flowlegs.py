@@ -16,7 +16,7 @@ from ._flowpath import Eos, Point, TwoPhaseError, polytropic_path, solve_T
 from .calc import Calc, Term
 from .errors import PhysicsError
 from .gas import R_U, Gas, State
-from .processes import LegResult
+from .processes import LegResult, n_from_states
 
 __all__ = ["Ctx", "MeasuredEndError", "machine", "heat_exchanger", "throttle", "reversible"]
 
@@ -61,13 +61,7 @@ def _h_calcs(gas: Gas, pairs: list[tuple[str, State]]) -> list[Calc]:
 
 
 def _n_calc(i: int, s1: State, s2: State) -> Calc | None:
-    j = i + 1
-    if s1.v == s2.v or s1.P == s2.P:
-        return None
-    n = math.log(s2.P / s1.P) / math.log(s1.v / s2.v)
-    return Calc("n", n, "", "ln({P2}/{P1}) / ln({v1}/{v2})", "flow.n_ends",
-                {"P2": _t("P", j, s2.P, "Pa"), "P1": _t("P", i, s1.P, "Pa"),
-                 "v1": _t("v", i, s1.v, "m**3/kg"), "v2": _t("v", j, s2.v, "m**3/kg")})
+    return n_from_states(i, s1, s2, method="flow.n_ends", note="")
 
 
 def _flow_terms(m_dot: float, w: float, sym: str = "w_in") -> dict[str, Term]:

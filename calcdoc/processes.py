@@ -13,7 +13,7 @@ from .calc import Calc, Term
 from .errors import PhysicsError
 from .gas import Gas, State
 
-__all__ = ["LegResult", "Target", "closed_leg", "polytropic_work"]
+__all__ = ["LegResult", "Target", "closed_leg", "n_from_states", "polytropic_work"]
 
 PATH_POINTS = 24
 
@@ -191,15 +191,17 @@ def _heat_first_law(i: int, dU: float, W: float) -> Calc:
                 {"dU": Term("ΔU", dU, "J"), "W": Term("W", W, "J")})
 
 
-def _n_from_states(i: int, s1: State, s2: State) -> Calc | None:
+def n_from_states(i: int, s1: State, s2: State, method: str = "path.polytropic_n",
+                  note: str = "equivalent polytropic exponent between the end states") -> Calc | None:
+    """The polytropic exponent joining states i and i + 1, n = ln(P2/P1)/ln(v1/v2); None where P or v is
+    the same at both ends (no exponent joins them)."""
     j = i + 1
     if s2.v == s1.v or s2.P == s1.P:
         return None
     val = math.log(s2.P / s1.P) / math.log(s1.v / s2.v)
-    return Calc("n", val, "", "ln({P2}/{P1}) / ln({v1}/{v2})", "path.polytropic_n",
+    return Calc("n", val, "", "ln({P2}/{P1}) / ln({v1}/{v2})", method,
                 {"P2": Term(_s("P", j), s2.P, "Pa"), "P1": Term(_s("P", i), s1.P, "Pa"),
-                 "v1": Term(_s("v", i), s1.v, "m**3/kg"), "v2": Term(_s("v", j), s2.v, "m**3/kg")},
-                note="equivalent polytropic exponent between the end states")
+                 "v1": Term(_s("v", i), s1.v, "m**3/kg"), "v2": Term(_s("v", j), s2.v, "m**3/kg")}, note=note)
 
 
 def _geom(a: float, b: float, k: int = PATH_POINTS) -> list[float]:
@@ -230,7 +232,7 @@ def _polytropic(gas, name, i, s1, m, targets, n):
         tP = next(t for t in targets if t.kind == "P")
         other = next(t for t in targets if t.kind != "P")
         s2 = gas.state_PT(tP.value, other.value) if other.kind == "T" else gas.state_Pv(tP.value, other.value)
-        nc = _n_from_states(i, s1, s2)
+        nc = n_from_states(i, s1, s2)
         if nc is None:
             raise PhysicsError("the measured end state has the start pressure or volume, so no polytropic exponent "
                                "joins the two states; use an isobaric or isochoric leg")
@@ -314,7 +316,7 @@ def _isentropic(gas, name, i, s1, m, targets, n):
     Q = Calc("Q", 0.0, "J", "0", "work.adiabatic")
     # along v with (density, entropy) flashes: fast for pure fluids and mixtures alike
     path = [gas.state_vs(v, s1.s) for v in _geom(s1.v, s2.v)[1:-1]] if s2.v != s1.v else []
-    return _finish(gas, name, "isentropic", i, s1, s2, m, W, Q, _n_from_states(i, s1, s2), steps,
+    return _finish(gas, name, "isentropic", i, s1, s2, m, W, Q, n_from_states(i, s1, s2), steps,
                    [s1, *path, s2], [], targets)
 
 
@@ -339,7 +341,7 @@ def _isothermal(gas, name, i, s1, m, targets, n):
         facts.append("Real gas: heat from T·ΔS along the isotherm, work from the first law "
                      "(P·V is not constant for a real gas).")
     path = [gas.state_Tv(s1.T, v) for v in _geom(s1.v, s2.v)[1:-1]]
-    return _finish(gas, name, "isothermal", i, s1, s2, m, W, Q, _n_from_states(i, s1, s2), [], [s1, *path, s2], facts,
+    return _finish(gas, name, "isothermal", i, s1, s2, m, W, Q, n_from_states(i, s1, s2), [], [s1, *path, s2], facts,
                    targets)
 
 
