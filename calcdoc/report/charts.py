@@ -19,7 +19,7 @@ class _Figures:
     """Figures without pyplot (no global figure state, a lighter import): ``subplots`` and ``close``."""
 
     @staticmethod
-    def subplots(*args, figsize, **kwargs):
+    def subplots(*args, figsize=(6.4, 4.8), **kwargs):
         from matplotlib.figure import Figure
 
         fig = Figure(figsize=figsize)
