@@ -92,6 +92,9 @@ def run_flow(job: Job) -> FlowResults:
             s = res.end
     records = tuple(StateRecord(k + 1, str(k + 1), st, V_dot=ctx.m_dot * st.v)
                     for k, st in enumerate([s1] + [leg.end for leg in legs]))
+    from .diagnose import ideal_condensation_warnings
+
+    warnings += ideal_condensation_warnings(job, gas, legs, s1)   # ideal model of a named fluid: Z, condensation
     totals = _totals(legs)
     basis = job_basis(job, gas)
     basis["flow"] = {"standard": None if job.start.standard_volume_flow is None else {
