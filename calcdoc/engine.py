@@ -168,12 +168,15 @@ def _phase_warnings(gas: Gas, label: str, states: list[State]) -> list[str]:
                        f"{extra}. Condensation: results along this path assume phase equilibrium; check that "
                        "liquid is acceptable.")
             return out
+    closest = None                      # the state nearest saturation, not the first one near it
     for s in states:
         dew = gas.dew_temperature(s.P)
-        if dew is not None and s.T - dew < NEAR_SATURATION_K:
-            out.append(f"{label}: the gas comes within {s.T - dew:.2g} K of its saturation temperature "
-                       f"({dew - 273.15:.4g} °C at {s.P / 1e3:.5g} kPa); condensation is possible.")
-            return out
+        if dew is not None and (closest is None or s.T - dew < closest[0]):
+            closest = (s.T - dew, s, dew)
+    if closest is not None and closest[0] < NEAR_SATURATION_K:
+        gap, s, dew = closest
+        out.append(f"{label}: the gas comes within {gap:.2g} K of its saturation temperature "
+                   f"({dew - 273.15:.4g} °C at {s.P / 1e3:.5g} kPa); condensation is possible.")
     return out
 
 

@@ -326,14 +326,18 @@ def _phase_warnings(ctx: Ctx, label: str, states: list[State], check_all: bool) 
             return [f"{label}: the fluid is {s.phase} at P = {s.P / 1e3:.5g} kPa, T = {s.T - 273.15:.4g} °C{extra}. "
                     "Condensation: check that liquid is acceptable and that the properties used apply."]
     pick = states if (eos.mixture or check_all) else [states[0], states[-1]]
+    closest = None                      # the state nearest its dew temperature, not the first one near it
     for s in pick:
         dew = eos.dew_temperature(s.P)
-        if dew is None:
-            continue
-        if s.T <= dew:
-            return [f"{label}: the state at P = {s.P / 1e3:.5g} kPa, T = {s.T - 273.15:.4g} °C is at or below the "
-                    f"dew temperature ({dew - 273.15:.4g} °C at that pressure): liquid can form."]
-        if s.T - dew < NEAR_DEW_K:
-            return [f"{label}: the gas comes within {s.T - dew:.2g} K of its dew temperature "
-                    f"({dew - 273.15:.4g} °C at {s.P / 1e3:.5g} kPa); condensation is possible."]
+        if dew is not None and (closest is None or s.T - dew < closest[0]):
+            closest = (s.T - dew, s, dew)
+    if closest is None:
+        return []
+    gap, s, dew = closest
+    if gap <= 0:
+        return [f"{label}: the state at P = {s.P / 1e3:.5g} kPa, T = {s.T - 273.15:.4g} °C is at or below the "
+                f"dew temperature ({dew - 273.15:.4g} °C at that pressure): liquid can form."]
+    if gap < NEAR_DEW_K:
+        return [f"{label}: the gas comes within {gap:.2g} K of its dew temperature "
+                f"({dew - 273.15:.4g} °C at {s.P / 1e3:.5g} kPa); condensation is possible."]
     return []

@@ -140,3 +140,17 @@ def test_choices_are_read_whatever_their_case(make_job):
                  {"pressure": "5 bar", "temperature": "300 K", "volume": "1 m3"},
                  [{"name": "a", "process": "Isothermal", "end": {"pressure": "8 bar"}}], units="si")
     assert a.gas.model == "ideal" and a.legs[0].process == "isothermal" and a.units == "SI"
+
+
+def test_condensation_warning_reports_the_closest_approach(make_job):
+    # CO2 cooled at constant volume from 50 bar, 25 °C to 10 °C: the end state is nearest its saturation
+    # temperature; reference: CoolProp called directly at the end pressure
+    import CoolProp.CoolProp as CP
+
+    res = engine.run(make_job({"model": "real", "fluid": "CO2"},
+                              {"pressure": "50 bar", "temperature": "25 degC", "mass": "1 kg"},
+                              [{"name": "Cool", "process": "isochoric", "end": {"temperature": "10 degC"}}]))
+    end = res.states[-1].state
+    gap = end.T - CP.PropsSI("T", "P", end.P, "Q", 1, "CO2")
+    assert 0 < gap < 1.0
+    assert any(f"within {gap:.2g} K" in w for w in res.warnings)

@@ -135,3 +135,20 @@ def test_compare_ignores_versions_and_tiny_float_noise():
     assert _compare(old, moved) == [f"legs[0].W.value: attached 1000.0, recomputed {1000.0 * (1 + 100 * RERUN_RTOL)!r}"]
     assert _compare(old, {**same, "phase": "liquid"}) == ["phase: attached 'gas', recomputed 'liquid'"]
     assert _compare(old, {**same, "legs": []}) == ["legs: 1 items attached, 0 recomputed"]
+
+
+def test_rerun_of_a_report_with_changes_since_an_older_revision(tmp_path):
+    new = tmp_path / "new.yaml"
+    new.write_text(DEMO.read_text(encoding="utf-8").replace("n: 1.55 ", "n: 1.50 ").replace("revision: B", "revision: C"),
+                   encoding="utf-8")
+    out = tmp_path / "out"
+    assert main(["run", str(new), "--changes-since", str(DEMO), "--out", str(out), "-q"]) == 0
+    report = out / "DEMO-210-C-004_revC.pdf"
+    v = verify(report, new, rerun=True)
+    assert v.ok
+    tampered = tmp_path / "t.pdf"
+    pkg = read_package(report)
+    results = json.loads(pkg.results_text)
+    results["legs"][0]["W_by_gas"]["value"] *= 1.01
+    _repack(report, tampered, results_bytes=json.dumps(results, indent=2).encode())
+    assert not verify(tampered, rerun=True).ok          # the job's own results are still compared
