@@ -79,6 +79,10 @@ def machine(ctx: Ctx, name: str, process: str, i: int, s1: State, P2: float, eta
     isentropic efficiency, or to a measured end temperature (both efficiencies derived)."""
     j = i + 1
     comp = process == "compressor"
+    if s1.phase in ("liquid", "two-phase", "supercritical liquid"):
+        raise PhysicsError(f"the {process} inlet is {s1.phase} (P = {s1.P / 1e3:.5g} kPa, T = {s1.T - 273.15:.4g} °C): "
+                           "a gas machine stage needs gas at its inlet, and liquid or wet compression and expansion "
+                           "are outside this model; raise the inlet temperature or lower its pressure")
     r = P2 / s1.P
     calcs = [Calc("r", r, "", "{P2}/{P1}", "flow.ratio", {"P2": _t("P", j, P2, "Pa"), "P1": _t("P", i, s1.P, "Pa")})]
     facts: list[str] = []

@@ -25,7 +25,7 @@ RUN_STAGE = {"unknown_fluid.yaml", "unknown_mixture_component.yaml", "start_outs
              "polytropic_n1_temperature.yaml", "polytropic_n0_pressure.yaml", "polytropic_measured_same_pressure.yaml",
              # steady flow: each leg's inlet is known only once the legs before it are computed
              "flow_compressor_lower_end.yaml", "flow_expander_higher_end.yaml", "flow_cooler_heats.yaml",
-             "flow_pressure_drop_too_large.yaml"}
+             "flow_pressure_drop_too_large.yaml", "flow_compressor_liquid_suction.yaml"}
 
 
 def _located(case: dict, path: Path) -> str:
