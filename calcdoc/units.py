@@ -86,6 +86,22 @@ _ALIASES = {
     "kgf/cm2": "kgf/cm**2", "kg/cm2": "kgf/cm**2", "hp": "hp", "g/mol": "g/mol", "kg/kmol": "kg/kmol",
 }
 _ABSOLUTE_TEMPERATURE_UNITS = {"degC", "degF", "K", "degR"}
+# Pressure units by their case-folded spelling (PSIG, Bar, KPA); mPa (millipascal) is not a pressure anyone
+# means in a job file, so "mpa" reads as MPa.
+_PRESSURE_FOLD = {u.casefold(): u for u in sorted(_PRESSURE_UNITS)} | {"kpa": "kPa", "mpa": "MPa", "pa": "Pa"}
+# Datasheet spellings, normalised before any other reading.
+_DATASHEET_SPELLINGS = {
+    "ACFM": "acfm", "CFM": "cfm", "lbm": "lb", "lbm/h": "lb/hour", "lbm/hr": "lb/hour", "lbm/s": "lb/s",
+    "deg C": "degC", "deg F": "degF", "deg R": "degR", "US gal": "gallon", "USgal": "gallon", "gal": "gallon",
+    "cu ft": "ft**3", "cu. ft.": "ft**3", "cu in": "in**3", "lb-mol/h": "lbmol/hour", "lbmol/h": "lbmol/hour",
+    "lb-mol/hr": "lbmol/hour", "kmol/hr": "kmol/hour", "Am3/h": "m**3/hour", "Am3/min": "m**3/min",
+    "kg/hr": "kg/hour", "m3/hr": "m**3/hour",
+}
+
+
+def _spelling(unit_text: str) -> str:
+    text = unit_text.strip().replace("³", "3").replace("²", "2")
+    return _DATASHEET_SPELLINGS.get(text, text)
 
 
 class UnitParseError(ValueError):
@@ -228,15 +244,18 @@ def parse_quantity(value, kind: str, atmosphere: float | None = None, allow_perc
     if not unit_text:
         raise UnitParseError(f"'{entered}' has no unit",
                              f"write a {kind.replace('_', ' ')} with its unit, for example {_EXAMPLES.get(kind, '')}")
+    unit_text = _spelling(unit_text)
     gauge = False
     if kind == "pressure":
-        gm = _GAUGE.match(unit_text)
-        am = _ABS.match(unit_text)
-        if gm and gm.group("unit") in _PRESSURE_UNITS:
+        gm = _GAUGE.match(unit_text) or _GAUGE.match(unit_text[:-1] + unit_text[-1:].lower())
+        am = _ABS.match(unit_text) or _ABS.match(unit_text[:-1] + unit_text[-1:].lower())
+        if gm and _PRESSURE_FOLD.get(gm.group("unit").casefold()):
             gauge = True
-            unit_text = gm.group("unit")
-        elif am and am.group("unit") in _PRESSURE_UNITS:
-            unit_text = am.group("unit")
+            unit_text = _PRESSURE_FOLD[gm.group("unit").casefold()]
+        elif am and _PRESSURE_FOLD.get(am.group("unit").casefold()):
+            unit_text = _PRESSURE_FOLD[am.group("unit").casefold()]
+        elif unit_text.casefold() in _PRESSURE_FOLD:
+            unit_text = _PRESSURE_FOLD[unit_text.casefold()]
     elif unit_text.endswith(("g", "(g)")) and kind != "pressure" and unit_text[:-1] in _PRESSURE_UNITS:
         raise UnitParseError(f"'{entered}' is a gauge pressure",
                              f"a {kind.replace('_', ' ')} cannot be gauge; write it as a plain difference, for example '0.3 bar'")
@@ -323,11 +342,9 @@ def _parse_temperature(num: float, unit_text: str, entered: str) -> Parsed:
 
 
 def _parse_temperature_difference(num: float, unit_text: str, entered: str) -> Parsed:
+    # where a difference is meant (a margin, a temperature rise), °C and °F are read as differences
     unit = {"K": "K", "kelvin": "K", "degR": "degR", "R": "degR", "delta_degC": "K", "delta_degF": "degR",
-            "degC": None, "°C": None, "degF": None, "°F": None}.get(unit_text.strip(), "?")
-    if unit is None:
-        raise UnitParseError(f"'{entered}' is ambiguous as a temperature difference",
-                             "write a difference in K or delta_degC (or degR or delta_degF)")
+            "degC": "K", "°C": "K", "C": "K", "degF": "degR", "°F": "degR", "F": "degR"}.get(unit_text.strip(), "?")
     if unit == "?":
         raise UnitParseError(f"'{entered}': '{unit_text}' is not a unit of temperature difference",
                              "write a difference such as '10 K' or '18 delta_degF'")

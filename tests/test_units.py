@@ -93,3 +93,20 @@ def test_kgf_per_cm2_gauge():
     # 1 kgf/cm2 = 98 066.5 Pa exactly (standard gravity, CGPM 1901; NIST SP 811)
     p = parse_quantity("10 kgf/cm2g", "pressure", atmosphere=101325.0)
     assert p.gauge and p.si == pytest.approx(980665.0 + 101325.0, rel=1e-14)
+
+
+@pytest.mark.parametrize("text, kind, si", [
+    # exact unit definitions: 1 psi = 6894.757293168 Pa, 1 lb = 0.45359237 kg, 1 ft = 0.3048 m,
+    # 1 US gallon = 231 in3 (NIST SP 811, appendix B)
+    ("100 PSIG", "pressure", 100 * 6894.757293168 + 101325.0),
+    ("8 Bar", "pressure", 8e5),
+    ("1000 ACFM", "volume_flow", 1000 * 0.3048 ** 3 / 60),
+    ("5 lbm", "mass", 5 * 0.45359237),
+    ("100 US gal", "volume", 100 * 231 * 0.0254 ** 3),
+    ("10 cu ft", "volume", 10 * 0.3048 ** 3),
+    ("1000 Nm³/h", "standard_volume_flow", 1000 / 3600),
+    ("20 deg C", "temperature", 293.15),
+    ("10 degF", "temperature_difference", 10 / 1.8),           # a margin is a difference
+])
+def test_datasheet_spellings(text, kind, si):
+    assert parse_quantity(text, kind, atmosphere=101325.0).si == pytest.approx(si, rel=1e-12)
