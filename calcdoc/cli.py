@@ -262,7 +262,8 @@ def _summary(results, written) -> None:
 
     def show(value, unit, sig=5, difference=False):
         v, u = display(value, unit, system, difference=difference)
-        return f"{_num(v, sig)} {u}".replace("\u2009", " ").strip()
+        text = _num(v, sig) if v == 0 or 1e-3 <= abs(v) < 1e7 else f"{v:.{sig - 1}e}"   # no markup on a terminal
+        return f"{text} {u}".replace("\u2009", " ").strip()
 
     print(f"{t.number} rev {t.revision}: {t.title}")
     print(f"  gas: {results.gas.describe()}")
@@ -302,7 +303,16 @@ def _flow_leg_line(leg, show) -> str:
 
 
 def entry() -> None:
-    sys.exit(main())
+    try:
+        code = main()
+        sys.stdout.flush()
+    except BrokenPipeError:
+        # the reader of our output went away (calcdoc schema | head): not an error of ours
+        import os
+
+        os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
+        code = EXIT_OK
+    sys.exit(code)
 
 
 if __name__ == "__main__":

@@ -255,10 +255,10 @@ def _staged(job, ctx, leg, st: Staging, i, s, P_out, eta_p, eta_s, eta_m) -> tup
                 break
         else:
             raise problem_at(job, st.T_max, f"no number of stages up to {st.max_stages} keeps every discharge at or "
-                             f"below {st.T_max.entered} ({st.max_stages} stages give {tried[-1][1] - 273.15:.4g} °C)",
+                             f"below {st.T_max.entered} ({st.max_stages} stages give {_temp_text(tried[-1][1], job)})",
                              "raise max_stages, lower the intercooler outlet temperature, or review the limit")
         N = tried[-1][0]
-        steps = "; ".join(f"{n} stage{'s' if n > 1 else ''}: highest discharge {T - 273.15:.4g} °C "
+        steps = "; ".join(f"{n} stage{'s' if n > 1 else ''}: highest discharge {_temp_text(T, job)} "
                           f"({'within' if T <= limit else 'above'} the limit)" for n, T in tried)
         why = (f"Fewest stages that keep every discharge temperature at or below {st.T_max.entered}: {N}. "
                f"Trials with equal stage ratios: {steps}.")
@@ -275,6 +275,14 @@ def _with(res: LegResult, **kw) -> LegResult:
     import dataclasses
 
     return dataclasses.replace(res, **kw)
+
+
+def _temp_text(T: float, job) -> str:
+    """A temperature for a sentence of the report, in the job's unit system."""
+    from .units import display
+
+    v, u = display(T, "K", job.units)
+    return f"{v:.4g} {u}"
 
 
 def _totals(legs: list[LegResult]) -> tuple[Calc, ...]:

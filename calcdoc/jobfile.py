@@ -376,6 +376,11 @@ class _Validator:
         if "atmosphere" in m and "elevation" in m:
             self.add(node, "both atmosphere and elevation are given", "give one: the measured atmosphere or the elevation")
         if "atmosphere" in m:
+            text = str(m["atmosphere"].value)
+            if m["atmosphere"].kind == "scalar" and units.is_gauge_text(text):
+                self.add(m["atmosphere"], f"'{text}' is a gauge pressure",
+                         "the site atmosphere is the absolute barometric pressure, for example 98.6 kPa or 14.3 psia")
+                return Site(None, "not given")
             atm = self.quantity(m["atmosphere"], "pressure", allow_gauge=False)
             if atm is not None:
                 if not 30e3 <= atm.si <= 110e3:
@@ -470,10 +475,15 @@ class _Validator:
                      f"give exactly one of {which}")
         if system == "flow":
             has_std = "standard_volume_flow" in m
+            entered = str(m["standard_volume_flow"].value) if has_std else ""
+            # the usual reference of the unit written: scf at 14.696 psia and 60 degF, Nm3 at 0 degC, Sm3 at 15 degC
+            usual = ("standard_pressure: 14.696 psia and standard_temperature: 60 degF" if "scf" in entered.lower()
+                     else "standard_pressure: 101.325 kPa and standard_temperature: 15 degC" if "Sm3" in entered
+                     else "standard_pressure: 101.325 kPa and standard_temperature: 0 degC")
             for k in ("standard_pressure", "standard_temperature"):
                 if has_std and k not in m:
                     self.add(node, f"a standard volume flow needs its reference {k.split('_')[1]} stated",
-                             "add standard_pressure: 101.325 kPa and standard_temperature: 0 degC (or your contract's)",
+                             f"add {usual} (or the conditions your contract or datasheet states)",
                              path=f"{node.path}.{k}")
                 if not has_std and k in m:
                     self.add(m[k], f"{k} is given without a standard_volume_flow", "remove it or give standard_volume_flow")
@@ -506,7 +516,15 @@ class _Validator:
         if not m:
             return None
         name = self.text(m.get("name"))
-        process = self.enum(m.get("process"), FLOW_PROCESSES if flow else CLOSED_PROCESSES)
+        pnode = m.get("process")
+        pval = str(pnode.value).strip().casefold() if pnode is not None and pnode.kind == "scalar" else ""
+        if not flow and pval in FLOW_PROCESSES and pval not in CLOSED_PROCESSES:
+            self.add(pnode, f"'{pnode.value}' is a steady-flow process, and this job is a closed system",
+                     "set system: flow (and give a mass_flow or volume flow at the start), or use a closed-system "
+                     "process: " + ", ".join(CLOSED_PROCESSES))
+            process = None
+        else:
+            process = self.enum(pnode, FLOW_PROCESSES if flow else CLOSED_PROCESSES)
         n = None
         if "n" in m:
             if process not in (None, "polytropic"):

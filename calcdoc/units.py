@@ -99,6 +99,16 @@ _DATASHEET_SPELLINGS = {
 }
 
 
+def is_gauge_text(text: str) -> bool:
+    """Whether a pressure as written carries a gauge marker (barg, psig, bar(g), ...)."""
+    m = _NUMBER.match(text)
+    if not m:
+        return False
+    unit = _spelling(m.group("unit"))
+    gm = _GAUGE.match(unit) or _GAUGE.match(unit[:-1] + unit[-1:].lower()) if unit else None
+    return bool(gm and _PRESSURE_FOLD.get(gm.group("unit").casefold()))
+
+
 def _spelling(unit_text: str) -> str:
     text = unit_text.strip().replace("³", "3").replace("²", "2")
     return _DATASHEET_SPELLINGS.get(text, text)
