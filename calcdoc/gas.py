@@ -180,7 +180,7 @@ class RealGas(Gas):
         try:
             AS.update(pair, a, b)
         except ValueError as exc:
-            raise PhysicsError(f"the equation of state cannot give the state with {what} ({_short(exc)})") from None
+            raise PhysicsError(self._why_not(pair, a, b, what, exc)) from None
         # after a P-T flash CoolProp's p() can differ from the pressure asked for by ~1e-9 (found by the
         # verification cases): keep the state the user gave
         P, T = (a, b) if pair == self._CP.PT_INPUTS else (AS.p(), AS.T())
@@ -194,6 +194,25 @@ class RealGas(Gas):
             phase = "two-phase"
         return State(P, T, 1.0 / AS.rhomass(), AS.umass(), AS.hmass(), AS.smass(), AS.compressibility_factor(),
                      phase, quality)
+
+    def _why_not(self, pair, a: float, b: float, what: str, exc: Exception) -> str:
+        """The reason a flash failed, in the trade's words where we can tell (below the triple point: solid)."""
+        CP = self._CP
+        if self.pure:
+            P = {CP.PSmass_INPUTS: a, CP.HmassP_INPUTS: b, CP.PT_INPUTS: a, CP.PQ_INPUTS: a}.get(pair)
+            T = b if pair == CP.PT_INPUTS else None
+            try:
+                P_tr, T_tr = self.AS.trivial_keyed_output(CP.iP_triple), self.AS.Ttriple()
+            except ValueError:
+                P_tr = T_tr = None
+            if P is not None and P_tr and P < P_tr and pair in (CP.PSmass_INPUTS, CP.HmassP_INPUTS):
+                return (f"the state with {what} lies below the triple-point pressure of {self.name} "
+                        f"({P_tr / 1e3:.5g} kPa), where an expanding fluid would form solid; the equation of state "
+                        "covers gas and liquid only")
+            if T is not None and T_tr and T < T_tr:
+                return (f"the temperature {T:.6g} K is below the triple point of {self.name} ({T_tr:.5g} K); the "
+                        "equation of state covers gas and liquid only")
+        return f"the equation of state cannot give the state with {what} ({_short(exc)})"
 
     def state_PT(self, P, T):
         return self._update(self._CP.PT_INPUTS, P, T, f"P = {P:.6g} Pa, T = {T:.6g} K")

@@ -67,3 +67,14 @@ def test_real_gas_two_phase_is_labelled():
     s = g.state_Pv(3e6, math.sqrt(vl * vv))
     assert s.phase == "two-phase" and 0 < s.quality < 1
     assert g.dew_temperature(3e6) == pytest.approx(Tsat, rel=1e-9)
+
+
+def test_expansion_below_the_triple_point_is_named():
+    # CO2's triple-point pressure is 517.96 kPa (Span & Wagner 1996, via CoolProp): an isentrope from
+    # 60 bar, 30 °C ends in solid + vapour at 5 bar, which the equation of state does not cover
+    from calcdoc.errors import PhysicsError
+
+    g = RealGas("CO2")
+    s1 = g.state_PT(60e5, 303.15)
+    with pytest.raises(PhysicsError, match="triple-point pressure"):
+        g.state_Ps(5e5, s1.s)
