@@ -233,6 +233,14 @@ def read_options(job: Job) -> tuple[Job, list[LegOptions]]:
     return job, opts
 
 
+def option_inputs(job: Job) -> list[Input]:
+    """The quantities the steady-flow leg options give (efficiencies, pressure drops, staging)."""
+    r = _Reader(job)
+    for leg in job.legs:
+        r.leg(leg)
+    return r.inputs
+
+
 def option_problems(job: Job) -> list[Problem]:
     """Every problem of the steady-flow leg options, found without computing (for ``calcdoc check``)."""
     r = _Reader(job)

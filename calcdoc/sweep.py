@@ -101,7 +101,12 @@ def _resolve(job: Job, text: str) -> tuple[Node | None, list, str]:
         return None, [], f"{node.path} is not a single value"
     if route[0] in _NOT_SWEPT:
         return None, [], f"'{route[0]}' is not an input a sweep can vary"
-    if not any(inp.path == node.path for inp in job.inputs):
+    inputs = list(job.inputs)
+    if job.system == "flow":
+        from ._flowjob import option_inputs
+
+        inputs += option_inputs(job)          # efficiencies, pressure drops, staging
+    if not any(inp.path == node.path for inp in inputs):
         return None, [], f"{node.path} is not a quantity of the job"
     return node, route, ""
 
@@ -282,7 +287,8 @@ def with_sweep(job: Job, results):
             msg = "; ".join(p.found for p in exc.problems) if isinstance(exc, JobError) else str(exc)
             raise JobError([_at_point(job, src, k, entered, msg,
                                       "narrow the sweep to values this job can be computed at")]) from None
-        inp = next(i for i in pj.inputs if i.path == plan.node.path)
+        inp = next((i for i in res.job.inputs if i.path == plan.node.path), None) or \
+            next(i for i in pj.inputs if i.path == plan.node.path)
         points.append({"entered": entered, "value": qjson(inp.si, inp.unit)})
         for qty, at, where, path in plan.follow:
             for place, calc in locations(pj, res, qty, at, where, path):
@@ -297,7 +303,7 @@ def with_sweep(job: Job, results):
             s["margin"][k] = c.margin
             s["status"][k] = c.status
     sweep = {"input": plan.input, "path": plan.node.path,
-             "unit": next(i.unit for i in job.inputs if i.path == plan.node.path),
+             "unit": next(i.unit for i in results.job.inputs if i.path == plan.node.path),
              "points": points, "series": list(series.values()), "checks": list(checks.values())}
     return dataclasses.replace(results, extra={**results.extra, "sweep": sweep})
 

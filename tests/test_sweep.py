@@ -105,3 +105,24 @@ def test_report_has_the_sensitivity_table_and_chart():
     section = html[html.index("Sensitivity: start.temperature"):]
     assert "280 K" in section and "320 K" in section and "FAIL" in section
     assert 'alt="Sensitivity to start.temperature"' in section and "data:image/svg+xml;base64," in section
+
+
+def test_a_sweep_of_a_stage_efficiency_equals_separate_runs():
+    from calcdoc.engine import run
+    from calcdoc.jobfile import loads
+
+    base = """calcdoc: 1
+calc: {number: SW-1, title: Efficiency sweep, revision: A, date: 2026-11-30}
+gas: {model: ideal, k: 1.3, molar_mass: 16.04 g/mol}
+system: flow
+start: {pressure: 20 bar, temperature: 300 K, mass_flow: 5 kg/s}
+legs:
+  - {name: Stage 1, process: compressor, efficiency: {polytropic: EFF}, end: {pressure: 60 bar}}
+"""
+    swept = base.replace("EFF", "0.8") + (
+        'sweep: {input: "legs[Stage 1].efficiency.polytropic", values: [0.7, 0.8], follow: [power]}\n')
+    res = run(loads(swept, "s.yaml"))
+    (series,) = res.extra["sweep"]["series"]
+    for k, eff in enumerate(("0.7", "0.8")):
+        alone = run(loads(base.replace("EFF", eff), "a.yaml"))
+        assert series["values"][k] == alone.legs[0].quantities["power"].value   # the same computation, exactly
