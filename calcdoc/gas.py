@@ -126,7 +126,8 @@ class IdealGas(Gas):
 
 _PHASES = {
     "iphase_liquid": "liquid", "iphase_gas": "gas", "iphase_twophase": "two-phase",
-    "iphase_supercritical": "supercritical", "iphase_supercritical_gas": "supercritical gas",
+    # CoolProp's "supercritical gas" (above the critical temperature, below the critical pressure) is a gas
+    "iphase_supercritical": "supercritical", "iphase_supercritical_gas": "gas",
     "iphase_supercritical_liquid": "supercritical liquid", "iphase_critical_point": "critical point",
 }
 
