@@ -233,6 +233,37 @@ def read_options(job: Job) -> tuple[Job, list[LegOptions]]:
     return job, opts
 
 
+def direction_problem(job: Job, leg: LegSpec, P_in: float, T_in: float) -> Problem | None:
+    """A leg whose end target goes the wrong way for its process, from an inlet at (P_in, T_in): a
+    compressor that does not raise the pressure, an expander or throttle that does not lower it, a cooler
+    that heats or a heater that cools."""
+    proc = leg.process
+
+    def at(inp: Input, found: str, valid: str) -> Problem:
+        return Problem(job.name, inp.line, inp.col, inp.path, found, valid)
+
+    if proc in ("cooler", "heater") and "temperature" in leg.end:
+        t = leg.end["temperature"]
+        if proc == "cooler" and t.si > T_in:
+            return at(t, f"the cooler outlet {t.entered} is above its inlet temperature ({T_in - 273.15:.4g} °C)",
+                      "a cooler lowers the temperature; use a heater, or a lower outlet temperature")
+        if proc == "heater" and t.si < T_in:
+            return at(t, f"the heater outlet {t.entered} is below its inlet temperature ({T_in - 273.15:.4g} °C)",
+                      "a heater raises the temperature; use a cooler, or a higher outlet temperature")
+        return None
+    inp = leg.end.get("pressure") or leg.end.get("pressure_ratio")
+    if inp is None:
+        return None
+    P2 = inp.si if "pressure" in leg.end else P_in * inp.si
+    if proc == "compressor" and P2 <= P_in:
+        return at(inp, f"the compressor's end pressure ({P2 / 1e3:.6g} kPa) is not above its start "
+                       f"({P_in / 1e3:.6g} kPa)", "give an end pressure above the start, or use an expander or throttle")
+    if proc in ("expander", "throttle") and P2 >= P_in:
+        return at(inp, f"the {proc}'s end pressure ({P2 / 1e3:.6g} kPa) is not below its start ({P_in / 1e3:.6g} kPa)",
+                  "give an end pressure below the start (pressure_ratio is end/start, below 1 for an expansion)")
+    return None
+
+
 def option_inputs(job: Job) -> list[Input]:
     """The quantities the steady-flow leg options give (efficiencies, pressure drops, staging)."""
     r = _Reader(job)
@@ -246,7 +277,9 @@ def option_problems(job: Job) -> list[Problem]:
     r = _Reader(job)
     for leg in job.legs:
         r.leg(leg)
-    return r.problems
+    # the first leg starts at the start state, known without computing
+    first = direction_problem(job, job.legs[0], job.start.pressure.si, job.start.temperature.si) if job.legs else None
+    return r.problems + ([first] if first is not None else [])
 
 
 def problem_at(job: Job, inp_or_path, found: str, valid: str = "") -> JobError:

@@ -300,12 +300,13 @@ class _Reader:
         try:
             p = units.parse_quantity(node.value, kind, atmosphere=self.job.site.P_atm, allow_percent=allow_percent)
         except units.UnitParseError as exc:
-            self.add(node, exc.found, exc.valid)
+            self.add(node, exc.found, exc.valid + (" or a percentage of the computed value, for example '10 %'"
+                                                   if allow_percent else ""))
             return None
         if not math.isfinite(p.si):
             self.add(node, f"'{p.entered}' is not a finite value", "write a finite number")
             return None
-        return Input(p.si, p.unit, p.entered, node.path, *node.where, gauge=p.gauge, percent=p.percent)
+        return Input(p.si, p.unit, p.entered, node.path, *node.where, gauge=p.gauge, percent=p.percent, kind=kind)
 
 
 def parse_limits(job: Job) -> tuple[list[LimitSpec], list[Problem]]:

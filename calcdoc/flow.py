@@ -10,7 +10,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-from ._flowjob import LegOptions, Staging, problem_at, read_options
+from ._flowjob import LegOptions, Staging, direction_problem, problem_at, read_options
 from ._flowlegs import Ctx, MeasuredEndError, heat_exchanger, machine, reversible, throttle
 from ._flowpath import Eos, TwoPhaseError
 from .calc import Calc, Term
@@ -163,27 +163,14 @@ def _target_inp(leg: LegSpec):
 
 def _leg(job: Job, ctx: Ctx, leg: LegSpec, opt: LegOptions, i: int, s: State) -> tuple[list[LegResult], dict]:
     proc = leg.process
+    wrong_way = direction_problem(job, leg, s.P, s.T)
+    if wrong_way is not None:
+        raise JobError([wrong_way])
     if proc in ("cooler", "heater"):
         T2 = leg.end["temperature"].si
-        if proc == "cooler" and T2 > s.T:
-            raise problem_at(job, leg.end["temperature"], f"the cooler outlet {leg.end['temperature'].entered} is "
-                             f"above its inlet temperature ({s.T - 273.15:.4g} °C)",
-                             "a cooler lowers the temperature; use a heater, or a lower outlet temperature")
-        if proc == "heater" and T2 < s.T:
-            raise problem_at(job, leg.end["temperature"], f"the heater outlet {leg.end['temperature'].entered} is "
-                             f"below its inlet temperature ({s.T - 273.15:.4g} °C)",
-                             "a heater raises the temperature; use a cooler, or a higher outlet temperature")
         P2, dcalc = _drop(job, opt.drop, i, s.P)
         return [heat_exchanger(ctx, leg.name, proc, i, s, P2, T2, dcalc)], {}
     P2 = _end_pressure(job, leg, s)
-    inp = _target_inp(leg)
-    if proc == "compressor" and P2 <= s.P:
-        raise problem_at(job, inp, f"the compressor's end pressure ({P2 / 1e3:.6g} kPa) is not above its start "
-                         f"({s.P / 1e3:.6g} kPa)", "give an end pressure above the start, or use an expander or throttle")
-    if proc in ("expander", "throttle") and P2 >= s.P:
-        raise problem_at(job, inp, f"the {proc}'s end pressure ({P2 / 1e3:.6g} kPa) is not below its start "
-                         f"({s.P / 1e3:.6g} kPa)", "give an end pressure below the start (pressure_ratio is end/start, "
-                         "below 1 for an expansion)")
     if proc == "throttle":
         return [throttle(ctx, leg.name, i, s, P2)], {}
     if proc in ("polytropic", "isentropic", "isothermal"):
