@@ -85,14 +85,7 @@ def read_package(pdf_path: str | Path) -> Package:
     from pypdf.errors import PdfReadError
 
     path = Path(pdf_path)
-    try:
-        data = path.read_bytes()
-    except FileNotFoundError:
-        raise VerifyError(f"{pdf_path}: no such file") from None
-    except IsADirectoryError:
-        raise VerifyError(f"{pdf_path}: this is a folder, not a PDF") from None
-    except OSError as exc:
-        raise VerifyError(f"{pdf_path}: cannot read the file ({exc.strerror})") from None
+    data = _read(pdf_path, "a PDF")
     if not data.startswith(b"%PDF-"):
         raise VerifyError(f"{pdf_path}: not a PDF file")
     import io
@@ -128,6 +121,18 @@ def _is_results(blob: bytes) -> bool:
     return isinstance(obj, dict) and obj.get("schema") == RESULTS_SCHEMA
 
 
+def _read(path: str | Path, what: str) -> bytes:
+    """A file's bytes, or a VerifyError saying why not."""
+    try:
+        return Path(path).read_bytes()
+    except FileNotFoundError:
+        raise VerifyError(f"{path}: no such file") from None
+    except IsADirectoryError:
+        raise VerifyError(f"{path}: this is a folder, not {what}") from None
+    except OSError as exc:
+        raise VerifyError(f"{path}: cannot read the file ({exc.strerror})") from None
+
+
 def verify(pdf_path: str | Path, job_path: str | Path | None = None, rerun: bool = False) -> Verification:
     """Check a calc package against itself, against a job file, and (``rerun``) against a new run."""
     pkg = read_package(pdf_path)
@@ -147,14 +152,7 @@ def verify(pdf_path: str | Path, job_path: str | Path | None = None, rerun: bool
                          + ("" if stated == sha else f": results state {stated}"))
     # 2. the report against a job file
     if job_path is not None:
-        try:
-            given = Path(job_path).read_bytes()
-        except FileNotFoundError:
-            raise VerifyError(f"{job_path}: no such file") from None
-        except IsADirectoryError:
-            raise VerifyError(f"{job_path}: this is a folder, not a job file") from None
-        except OSError as exc:
-            raise VerifyError(f"{job_path}: cannot read the file ({exc.strerror})") from None
+        given = _read(job_path, "a job file")
         gsha = hashlib.sha256(given).hexdigest()
         if gsha == sha:
             v.add(True, f"the report was made from {job_path} (same sha256)")
