@@ -10,7 +10,7 @@ import difflib
 
 from .errors import Problem
 
-__all__ = ["fluid_problems", "start_state_problem", "ideal_condensation_warnings"]
+__all__ = ["fluid_problems", "start_state_problem", "ideal_condensation_warnings", "phase_warnings"]
 
 _COMMON = "use a CoolProp fluid name such as Nitrogen, Air, CarbonDioxide, Methane, Hydrogen"
 
@@ -135,3 +135,33 @@ def _ideal_deviation(real, fluid: str, checks) -> list[str]:
     return [f"{label}: real {fluid} has a compressibility factor Z = {Z:.4g} at P = {s.P / 1e3:.5g} kPa and "
             f"T = {s.T - 273.15:.4g} °C (CoolProp), so the ideal-gas model is off by about {abs(Z - 1) * 100:.2g} % "
             "in density there. Consider model: real."]
+
+
+def phase_warnings(dew_temperature, label: str, states, system: str, near_K: float, what: str) -> list[str]:
+    """Warnings for states in or near the two-phase region, in the job's units: the first state found liquid or
+    two-phase, else the state nearest its ``what`` ("saturation temperature" of a pure fluid, "dew temperature"
+    of a mixture) when nearer than ``near_K``. ``dew_temperature(P)`` gives that temperature or None."""
+    from .units import say
+
+    for s in states:
+        if s.phase in ("two-phase", "liquid", "supercritical liquid"):
+            dew = dew_temperature(s.P)
+            extra = f"; the {what} at {say(s.P, 'Pa', system)} is {say(dew, 'K', system, 4)}" if dew else ""
+            return [f"{label}: the gas is {s.phase} at P = {say(s.P, 'Pa', system)}, T = {say(s.T, 'K', system, 4)}"
+                    f"{extra}. Condensation: results along this path assume phase equilibrium; check that liquid is "
+                    "acceptable and that the properties used apply."]
+    closest = None                      # the state nearest the dew line, not the first one near it
+    for s in states:
+        dew = dew_temperature(s.P)
+        if dew is not None and (closest is None or s.T - dew < closest[0]):
+            closest = (s.T - dew, s, dew)
+    if closest is None:
+        return []
+    gap, s, dew = closest
+    if gap <= 0:
+        return [f"{label}: the state at P = {say(s.P, 'Pa', system)}, T = {say(s.T, 'K', system, 4)} is at or below "
+                f"the {what} ({say(dew, 'K', system, 4)} at that pressure): liquid can form."]
+    if gap < near_K:
+        return [f"{label}: the gas comes within {say(gap, 'K', system, 2, difference=True)} of its {what} "
+                f"({say(dew, 'K', system, 4)} at {say(s.P, 'Pa', system)}); condensation is possible."]
+    return []

@@ -157,27 +157,11 @@ def _targets(job: Job, leg: LegSpec, s1: State, m: float) -> list[Target]:
     return out
 
 
-def _phase_warnings(gas: Gas, label: str, states: list[State]) -> list[str]:
+def _phase_warnings(gas: Gas, label: str, states: list[State], system: str) -> list[str]:
     """Warnings for states in or near the two-phase region (pure fluids: saturation temperature)."""
-    out: list[str] = []
-    for s in states:
-        if s.phase in ("two-phase", "liquid", "supercritical liquid"):
-            dew = gas.dew_temperature(s.P)
-            extra = f"; saturation temperature at {s.P / 1e3:.5g} kPa is {dew - 273.15:.4g} °C" if dew else ""
-            out.append(f"{label}: the gas is {s.phase} at P = {s.P / 1e3:.5g} kPa, T = {s.T - 273.15:.4g} °C"
-                       f"{extra}. Condensation: results along this path assume phase equilibrium; check that "
-                       "liquid is acceptable.")
-            return out
-    closest = None                      # the state nearest saturation, not the first one near it
-    for s in states:
-        dew = gas.dew_temperature(s.P)
-        if dew is not None and (closest is None or s.T - dew < closest[0]):
-            closest = (s.T - dew, s, dew)
-    if closest is not None and closest[0] < NEAR_SATURATION_K:
-        gap, s, dew = closest
-        out.append(f"{label}: the gas comes within {gap:.2g} K of its saturation temperature "
-                   f"({dew - 273.15:.4g} °C at {s.P / 1e3:.5g} kPa); condensation is possible.")
-    return out
+    from .diagnose import phase_warnings
+
+    return phase_warnings(gas.dew_temperature, label, states, system, NEAR_SATURATION_K, "saturation temperature")
 
 
 def run(job: Job) -> Results:
@@ -223,7 +207,7 @@ def compute(job: Job) -> Results:
     warnings: list[str] = []
     legs: list[LegResult] = []
     records = [StateRecord(1, "1", s1, V=m * s1.v)]
-    warnings += _phase_warnings(gas, "Start state", [s1])
+    warnings += _phase_warnings(gas, "Start state", [s1], job.units)
     s = s1
     for k, leg in enumerate(job.legs):
         i = k + 1
@@ -241,7 +225,7 @@ def compute(job: Job) -> Results:
                                         "beyond floating-point range",
                                         "use a physical exponent (for a fixed volume use process: isochoric)")]) from None
         legs.append(res)
-        warnings += _phase_warnings(gas, f"Leg '{leg.name}'", list(res.path))
+        warnings += _phase_warnings(gas, f"Leg '{leg.name}'", list(res.path), job.units)
         s = res.end
         records.append(StateRecord(i + 1, str(i + 1), s, V=m * s.v))
     from .diagnose import ideal_condensation_warnings

@@ -60,7 +60,7 @@ def run_flow(job: Job) -> FlowResults:
     flow = _flow_calcs(job, ctx, s1)
     ctx.m_dot = flow["m_dot"].value
     start_calcs = site_calcs(job) + list(gas_calcs) + [Calc("v_1", s1.v, "m**3/kg", "v(P_1, T_1)", gas.eos_method)]
-    warnings += _phase_warnings(ctx, "Start state", [s1], True)
+    warnings += _phase_warnings(ctx, "Start state", [s1], True, job.units)
     legs: list[LegResult] = []
     staging_json = []
     s = s1
@@ -81,8 +81,8 @@ def run_flow(job: Job) -> FlowResults:
         if info:
             staging_json.append(info)
         for res in made:
-            warnings += _phase_warnings(ctx, f"Leg '{res.name}'", list(res.path), res.process in ("cooler", "throttle",
-                                                                                                   "expander"))
+            warnings += _phase_warnings(ctx, f"Leg '{res.name}'", list(res.path),
+                                        res.process in ("cooler", "throttle", "expander"), job.units)
             if res.process == "throttle" and res.end.quality is not None:
                 e = res.end
                 warnings.append(f"Leg '{res.name}': the outlet is two-phase at P = {e.P / 1e3:.5g} kPa, saturation "
@@ -308,31 +308,14 @@ def _totals(legs: list[LegResult]) -> tuple[Calc, ...]:
     return tuple(out)
 
 
-def _phase_warnings(ctx: Ctx, label: str, states: list[State], check_all: bool) -> list[str]:
+def _phase_warnings(ctx: Ctx, label: str, states: list[State], check_all: bool, system: str) -> list[str]:
     """Warnings for states in or near the two-phase region: pure fluids against the saturation
     temperature, mixtures against the dew temperature of the phase envelope."""
+    from .diagnose import phase_warnings
+
     eos = ctx.eos
     if eos is None:
         return []
-    for s in states:
-        if s.phase in ("two-phase", "liquid", "supercritical liquid"):
-            dew = eos.dew_temperature(s.P)
-            extra = f"; the dew temperature at {s.P / 1e3:.5g} kPa is {dew - 273.15:.4g} °C" if dew else ""
-            return [f"{label}: the fluid is {s.phase} at P = {s.P / 1e3:.5g} kPa, T = {s.T - 273.15:.4g} °C{extra}. "
-                    "Condensation: check that liquid is acceptable and that the properties used apply."]
-    pick = states if (eos.mixture or check_all) else [states[0], states[-1]]
-    closest = None                      # the state nearest its dew temperature, not the first one near it
-    for s in pick:
-        dew = eos.dew_temperature(s.P)
-        if dew is not None and (closest is None or s.T - dew < closest[0]):
-            closest = (s.T - dew, s, dew)
-    if closest is None:
-        return []
-    gap, s, dew = closest
-    if gap <= 0:
-        return [f"{label}: the state at P = {s.P / 1e3:.5g} kPa, T = {s.T - 273.15:.4g} °C is at or below the "
-                f"dew temperature ({dew - 273.15:.4g} °C at that pressure): liquid can form."]
-    if gap < NEAR_DEW_K:
-        return [f"{label}: the gas comes within {gap:.2g} K of its dew temperature "
-                f"({dew - 273.15:.4g} °C at {s.P / 1e3:.5g} kPa); condensation is possible."]
-    return []
+    liquid = [s for s in states if s.phase in ("two-phase", "liquid", "supercritical liquid")]
+    pick = liquid or (states if (eos.mixture or check_all) else [states[0], states[-1]])
+    return phase_warnings(eos.dew_temperature, label, pick, system, NEAR_DEW_K, "dew temperature")

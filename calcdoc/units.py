@@ -18,6 +18,7 @@ __all__ = [
     "DIMENSIONS",
     "P_STD",
     "convert",
+    "say",
     "pretty_unit",
     "Parsed",
     "UnitParseError",
@@ -432,6 +433,12 @@ def convert(value_si: float, si_unit: str, unit: str, difference: bool = False) 
     """An SI value in another unit; ``difference`` converts a temperature difference (no offset)."""
     scale, offset = _factor(si_unit, unit)
     return value_si * scale + (0.0 if difference else offset)
+
+
+def say(value_si: float, si_unit: str, system: str, sig: int = 5, difference: bool = False) -> str:
+    """A value for a sentence (warnings, messages) in the job's unit system: '1014.5 psia', '−2.6 °F'."""
+    v, u = display(value_si, si_unit, system, difference=difference)
+    return f"{v:.{sig}g} {u}".strip()
 
 
 def display(value_si: float, si_unit: str, system: str, difference: bool = False) -> tuple[float, str]:
