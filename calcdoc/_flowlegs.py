@@ -131,7 +131,7 @@ def _power(ctx: Ctx, q: dict, calcs: list[Calc], w: float, comp: bool, eta_m: fl
 def _machine_ideal(ctx, comp, i, s1, P2, r, eta_p, eta_s, T2m, facts):
     gas = ctx.gas
     j = i + 1
-    k, cp = gas.k, gas.cp
+    k = gas.k
     T1 = s1.T
     kt, rt, T1t = Term("k", k, ""), Term("r", r, ""), _t("T", i, T1, "K")
     calcs = []
@@ -275,7 +275,7 @@ def _eta_p_from_end(ctx: Ctx, comp: bool, p1: Point, p2: Point, p2s: Point) -> t
         end, path, steps = polytropic_path(ctx.eos, p1, s2.P, e)
         return end.state.T - s2.T, path, steps
 
-    a, (ga, path, steps) = e0, g(e0)
+    a, (ga, _, _) = e0, g(e0)
     b = e0 * (1.002 if e0 < 0.99 else 0.998)
     gb, path_b, steps_b = g(b)
     for _ in range(30):

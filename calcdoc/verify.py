@@ -84,7 +84,6 @@ def read_package(pdf_path: str | Path) -> Package:
     from pypdf import PdfReader
     from pypdf.errors import PdfReadError
 
-    path = Path(pdf_path)
     data = _read(pdf_path, "a PDF")
     if not data.startswith(b"%PDF-"):
         raise VerifyError(f"{pdf_path}: not a PDF file")

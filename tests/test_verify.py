@@ -4,7 +4,6 @@ One PDF is rendered for the module; tampered copies are made from it with pypdf 
 """
 from __future__ import annotations
 
-import io
 import json
 import shutil
 import subprocess
