@@ -81,7 +81,9 @@ _IN_PROCESS = """
 import sys, time, json
 import calcdoc, CoolProp, pint, matplotlib.pyplot, weasyprint, jinja2
 from weasyprint import HTML
-from calcdoc import jobfile, engine, output
+from calcdoc import engine
+from calcdoc import job as jobfile
+from calcdoc.report import output
 from calcdoc.report import render_html
 from calcdoc.report.render import _Fetcher, templates_dir
 output.write(engine.run(jobfile.load(sys.argv[1])), sys.argv[2])      # warm: fonts, caches, fluid library
@@ -131,7 +133,7 @@ def bench_render_and_engine(tmp: Path) -> None:
     ideal = tmp / "six_ideal.yaml"
     ideal.write_text(SIX_LEG_JOB.replace("{fluid: Nitrogen, model: real}", "{model: ideal, k: 1.4, molar_mass: 28.0134 g/mol}")
                      .replace("BENCH-6", "BENCH-6I"))
-    from calcdoc import engine, jobfile
+    from calcdoc import engine, job as jobfile
     from calcdoc.report import render_html
 
     html = tmp / "final.html"
@@ -151,7 +153,8 @@ def bench_render_and_engine(tmp: Path) -> None:
 
 _MEMORY = """
 import resource, sys, gc
-from calcdoc import jobfile, engine, results
+from calcdoc import engine, job as jobfile
+from calcdoc.report import jsonfile as results
 job = jobfile.load(sys.argv[1])
 res = engine.run(job); results.dumps(res)
 def rss():
@@ -232,7 +235,7 @@ def _reference_stage(fluid: str, P1: float, T1: float, P2: float, eta: float, st
 def bench_flash_efficiency(tmp: Path) -> None:
     """Real-gas stage: relative error of work and discharge temperature against a converged reference
     integration, and the equation-of-state calls it took."""
-    from calcdoc import engine, jobfile
+    from calcdoc import engine, job as jobfile
 
     cases = [("Methane", 30e5, 300.0, 90e5), ("Nitrogen", 10e5, 300.0, 40e5), ("CO2", 80e5, 313.15, 250e5)]
     for fluid, P1, T1, P2 in cases:
@@ -258,7 +261,7 @@ TRAIN = ("  - {name: Stage 1, process: compressor, efficiency: {polytropic: 0.8}
 
 
 def bench_mixture(tmp: Path) -> None:
-    from calcdoc import engine, jobfile
+    from calcdoc import engine, job as jobfile
 
     start = "{pressure: 16 bar, temperature: 30 degC, mass_flow: 10 kg/s}"
     times = {}
@@ -279,7 +282,7 @@ def bench_mixture(tmp: Path) -> None:
 def bench_sweep(tmp: Path) -> None:
     """A 200-point sweep of a real-gas stage, engine only, against 200 separate runs (measured on 5 runs
     of `calcdoc run --no-pdf` and scaled to 200)."""
-    from calcdoc import engine, jobfile
+    from calcdoc import engine, job as jobfile
 
     stage = "  - {name: Stage, process: compressor, efficiency: {polytropic: 0.8}, end: {pressure: 60 bar}}\n"
     base = _flow_job("{fluid: Methane, model: real}", "{pressure: 20 bar, temperature: 300 K, mass_flow: 5 kg/s}", stage)

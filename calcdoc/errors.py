@@ -6,6 +6,13 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+__all__ = ["EXIT_BAD_INPUT", "EXIT_CHECK_FAILED", "EXIT_INTERNAL", "EXIT_INTERRUPTED", "EXIT_OK", "CalcdocError",
+           "JobError", "PhysicsError", "Problem"]
+
+#: Exit codes of the command line: success, a design check fails (outputs still written), bad input,
+#: an internal error, and interrupted (128 + SIGINT).
+EXIT_OK, EXIT_CHECK_FAILED, EXIT_BAD_INPUT, EXIT_INTERNAL, EXIT_INTERRUPTED = 0, 1, 2, 3, 130
+
 
 class CalcdocError(Exception):
     """Base of every error calcdoc raises on purpose."""

@@ -30,7 +30,7 @@ def job_text(gas: dict, start: dict, legs: list[dict], **extra) -> str:
 
 @pytest.fixture
 def make_job():
-    from calcdoc.jobfile import loads
+    from calcdoc.job import loads
 
     def _make(gas, start, legs, **extra):
         return loads(job_text(gas, start, legs, **extra), "test.yaml")
@@ -58,7 +58,7 @@ def flow_job(gas: str, start: str, legs: str, extra: str = "") -> str:
 def run_flow_text():
     def run(text: str):
         from calcdoc.engine import run
-        from calcdoc.jobfile import loads
+        from calcdoc.job import loads
 
         return run(loads(text, "job.yaml"))
     return run

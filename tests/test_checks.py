@@ -10,7 +10,7 @@ from _limits_helpers import ideal_job, write
 from calcdoc import cli
 from calcdoc.engine import run
 from calcdoc.errors import JobError
-from calcdoc.jobfile import loads
+from calcdoc.job import loads
 
 # Polytropic compression of an ideal gas, P·V^n = const (Çengel, Boles & Kanoğlu 2019, ch. 4):
 # P2 = P1·(V1/V2)^n with P1 = 100 kPa, V1/V2 = 2, n = 1.3.

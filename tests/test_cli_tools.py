@@ -10,12 +10,13 @@ import pytest
 import yaml
 
 from _limits_helpers import ideal_job
-from calcdoc import cli, jobfile
+from calcdoc import cli
+from calcdoc.job import jobfile
 from calcdoc.engine import run
 from calcdoc.errors import JobError
-from calcdoc.jobfile import loads
-from calcdoc.schema import CLOSED_START_KEYS, FLOW_START_KEYS, job_schema
-from calcdoc.starter import STARTERS
+from calcdoc.job import loads
+from calcdoc.job.schema import CLOSED_START_KEYS, FLOW_START_KEYS, job_schema
+from calcdoc.job.starter import STARTERS
 
 EXAMPLES = sorted((Path(__file__).resolve().parents[1] / "example_jobs").glob("*.yaml"))
 
@@ -92,8 +93,10 @@ def test_closed_starter_runs_and_passes(tmp_path):
 
 
 def test_results_show_as_tables_in_a_notebook():
+    import calcdoc
+
     failing = "limits:\n  - {name: Peak, quantity: pressure, max: 200 kPa, basis: common practice}\n"
-    html = run(loads(ideal_job(failing), "job.yaml"))._repr_html_()
+    html = calcdoc.run(loads(ideal_job(failing), "job.yaml"))._repr_html_()   # the public API of a notebook
     assert html.count("<table>") == 3
     assert "1→2 Compression" in html and "2→3 Hold" in html and "<td>3</td>" in html
     assert "FAIL" in html and "does not pass" in html

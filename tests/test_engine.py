@@ -3,8 +3,10 @@ import json
 
 import pytest
 
-from calcdoc import engine, methods
-from calcdoc.results import dumps, to_json
+from calcdoc import engine
+from calcdoc.report import methods
+from calcdoc.engine.results import to_json
+from calcdoc.report.jsonfile import dumps
 
 IDEAL_N2 = {"model": "ideal", "k": 1.4, "molar_mass": "28.0134 g/mol"}
 

@@ -87,7 +87,7 @@ def test_failure_while_rendering_the_pdf_leaves_both_files_untouched(earlier_rep
     def broken_render(*args, **kwargs):
         raise RuntimeError("renderer crashed")
 
-    monkeypatch.setattr("calcdoc.report.render_pdf", broken_render)
+    monkeypatch.setattr("calcdoc.report.output.render_pdf", broken_render)
     job = _job(tmp_path, title="Receiver fill, revised")
     assert cli.main(["run", str(job), "--out", str(out)]) == 3
     assert _snapshot(out) == earlier_report[2], "the new JSON must not be written beside the old PDF"
@@ -148,7 +148,7 @@ def test_internal_error_is_one_line_and_the_traceback_goes_to_the_log_only_with_
     def broken_leg(*args, **kwargs):
         raise ZeroDivisionError("float division by zero")
 
-    monkeypatch.setattr("calcdoc.engine.closed_leg", broken_leg)
+    monkeypatch.setattr("calcdoc.engine.closed.closed_leg", broken_leg)
     job = _job(tmp_path)
     out = tmp_path / "out"
     assert cli.main(["run", str(job), "--out", str(out)]) == 3
@@ -169,7 +169,7 @@ def test_internal_error_while_checking_is_one_line(tmp_path, monkeypatch, capsys
     def broken(*args, **kwargs):
         raise KeyError("oops")
 
-    monkeypatch.setattr("calcdoc.jobfile._Validator.job", broken)
+    monkeypatch.setattr("calcdoc.job.jobfile._Validator.job", broken)
     assert cli.main(["check", str(_job(tmp_path))]) == 3
     err = capsys.readouterr().err
     assert err.count("\n") == 1 and "internal error" in err and "Traceback" not in err
@@ -178,7 +178,7 @@ def test_internal_error_while_checking_is_one_line(tmp_path, monkeypatch, capsys
 # -- safety of the inputs -----------------------------------------------------------------------------
 def test_yaml_builds_plain_data_only(tmp_path, capsys):
     from calcdoc.errors import JobError
-    from calcdoc.jobfile import loads
+    from calcdoc.job import loads
 
     marker = tmp_path / "pwned"
     for text in (f"calcdoc: !!python/object/apply:os.mkdir ['{marker}']\n",

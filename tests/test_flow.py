@@ -7,7 +7,7 @@ import math
 import pytest
 
 from calcdoc.errors import JobError
-from calcdoc.jobfile import loads
+from calcdoc.job import loads
 from conftest import flow_job
 
 AIR_IDEAL = "{fluid: Air, model: ideal, k: 1.4, R: 287 J/(kg*K)}"
@@ -245,7 +245,7 @@ def test_pure_fluid_cooler_to_liquid_warns(run_flow_text):
 
 
 def test_results_json_contract(run_flow_text):
-    from calcdoc.results import dumps
+    from calcdoc.report.jsonfile import dumps
 
     legs = (_leg("C", "compressor", "{pressure: 4 bar}", "efficiency: {polytropic: 0.8};mechanical_efficiency: 0.96")
             + _leg("K", "cooler", "{temperature: 35 degC}", "pressure_drop: 0.1 bar"))

@@ -6,7 +6,7 @@ import re
 import pytest
 
 from calcdoc.engine import run
-from calcdoc.jobfile import loads
+from calcdoc.job import loads
 from conftest import flow_job
 
 
@@ -26,9 +26,9 @@ def test_isentropic_enthalpy_is_written_with_defined_symbols(gas):
 
 
 def test_flow_uses_no_private_engine_names():
-    import calcdoc.flow as flow
+    import calcdoc.engine.flow as flow
     from pathlib import Path
 
     src = Path(flow.__file__).read_text(encoding="utf-8")
-    imports = re.findall(r"from \.engine import ([^\n]+)", src)
+    imports = re.findall(r"from \.(?:common|diagnose) import ([^\n]+)", src)
     assert imports and not any(name.strip().startswith("_") for line in imports for name in line.split(","))

@@ -18,8 +18,8 @@ from hypothesis import strategies as st
 
 from calcdoc.engine import run
 from calcdoc.errors import JobError
-from calcdoc.jobfile import loads
-from calcdoc.results import dumps
+from calcdoc.job import loads
+from calcdoc.report.jsonfile import dumps
 
 pytestmark = pytest.mark.slow
 

@@ -3,7 +3,7 @@ import math
 
 import pytest
 
-from calcdoc.gas import R_U, IdealGas, RealGas
+from calcdoc.physics.gas import R_U, IdealGas, RealGas
 
 
 def test_molar_gas_constant():

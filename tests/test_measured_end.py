@@ -6,7 +6,7 @@ import pytest
 
 from calcdoc.engine import run
 from calcdoc.errors import JobError
-from calcdoc.jobfile import loads
+from calcdoc.job import loads
 from conftest import flow_job
 
 AIR_IDEAL = "{fluid: Air, model: ideal, k: 1.4, R: 287 J/(kg*K)}"

@@ -5,8 +5,8 @@ from decimal import Decimal, getcontext
 import pytest
 from scipy.integrate import quad
 
-from calcdoc.gas import IdealGas, RealGas
-from calcdoc.processes import Target, closed_leg, polytropic_work
+from calcdoc.physics.gas import IdealGas, RealGas
+from calcdoc.physics.closed import Target, closed_leg, polytropic_work
 
 K, M = 1.4, 0.0280134          # demo ideal gas (nitrogen-like)
 P1, T1, M_GAS = 5e5, 300.0, 0.2

@@ -18,10 +18,10 @@ import pytest
 from pypdf import PdfReader
 
 import calcdoc
-from calcdoc import methods
-from calcdoc.calc import Calc
+from calcdoc.report import methods
+from calcdoc.physics.calc import Calc
 from calcdoc.report import render
-from calcdoc.results import Check
+from calcdoc.engine.results import Check
 
 
 ROOT = Path(__file__).resolve().parents[1]

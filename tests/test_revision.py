@@ -8,8 +8,9 @@ import pytest
 from _limits_helpers import ideal_job, write
 from calcdoc import cli
 from calcdoc.engine import run
-from calcdoc.jobfile import loads
-from calcdoc.revision import compare, diff_text, with_changes
+from calcdoc.job import loads
+from calcdoc.engine.revision import compare, with_changes
+from calcdoc.report.terminal import diff_text
 
 LIMITS = "limits:\n  - {name: Peak, quantity: pressure, at: Compression, max: 270 kPa, basis: common practice}\n"
 

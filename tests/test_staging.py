@@ -73,7 +73,7 @@ def test_demo_booster_job_runs_and_stays_under_its_limit():
     from pathlib import Path
 
     from calcdoc.engine import run
-    from calcdoc.jobfile import load
+    from calcdoc.job import load
 
     res = run(load(Path(__file__).parent.parent / "example_jobs" / "gas_booster_two_stage.yaml"))
     stages = [leg for leg in res.legs if leg.process == "compressor"]

@@ -11,8 +11,8 @@ import pytest
 from _limits_helpers import ideal_job
 from calcdoc.engine import run
 from calcdoc.errors import JobError
-from calcdoc.jobfile import loads
-from calcdoc.results import dumps
+from calcdoc.job import loads
+from calcdoc.report.jsonfile import dumps
 
 EXAMPLE = Path(__file__).resolve().parents[1] / "example_jobs" / "press_gas_spring.yaml"
 
@@ -109,7 +109,7 @@ def test_report_has_the_sensitivity_table_and_chart():
 
 def test_a_sweep_of_a_stage_efficiency_equals_separate_runs():
     from calcdoc.engine import run
-    from calcdoc.jobfile import loads
+    from calcdoc.job import loads
 
     base = """calcdoc: 1
 calc: {number: SW-1, title: Efficiency sweep, revision: A, date: 2026-11-30}

@@ -5,7 +5,7 @@ from __future__ import annotations
 import pytest
 
 from calcdoc.engine import run
-from calcdoc.jobfile import loads
+from calcdoc.job import loads
 from calcdoc.report.format import value_in
 from calcdoc.report.render import render_html
 from conftest import flow_job

@@ -9,7 +9,7 @@ import pytest
 
 from calcdoc.engine import run
 from calcdoc.errors import JobError
-from calcdoc.jobfile import loads
+from calcdoc.job import loads
 from conftest import flow_job
 
 CO2 = "{fluid: CarbonDioxide, model: real}"

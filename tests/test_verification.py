@@ -14,7 +14,8 @@ from pathlib import Path
 import pytest
 
 import calcdoc
-from calcdoc import _cases, _reference, cli, selftest
+from calcdoc import cli, selftest
+from calcdoc.selftest import cases as _cases, reference as _reference
 
 TOPICS = _cases.load_all()
 CASES = [c for tf in TOPICS for c in tf.cases]
@@ -87,7 +88,7 @@ def test_report_lists_every_case_id_exactly_once(selftest_out):
 
 
 def test_breaking_an_engine_formula_fails_the_matching_cases(monkeypatch, tmp_path):
-    import calcdoc.processes as processes
+    import calcdoc.physics.closed as processes
 
     good = processes.polytropic_work
     monkeypatch.setattr(processes, "polytropic_work", lambda P1V1, r, n: 1.001 * good(P1V1, r, n))
@@ -246,7 +247,7 @@ def test_rk4_refuses_a_bad_number_of_steps(steps):
 def test_breaking_the_stage_ratio_fails_the_staging_cases_only(monkeypatch):
     # The flow cases must be sensitive to the engine: a stage ratio 0.1 % off fails every ideal-gas case
     # with a staged compressor and no other ideal-gas flow case.
-    import calcdoc.staging as staging
+    import calcdoc.physics.staging as staging
 
     good = staging.equal_stage_ratio
     monkeypatch.setattr(staging, "equal_stage_ratio", lambda *a, **k: 1.001 * good(*a, **k))

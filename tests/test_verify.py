@@ -15,7 +15,7 @@ from pypdf import PdfReader, PdfWriter
 
 import calcdoc
 from calcdoc.cli import main
-from calcdoc.verify import RERUN_RTOL, VerifyError, _compare, read_package, verify
+from calcdoc.cli.verify import RERUN_RTOL, VerifyError, _compare, read_package, verify
 
 
 ROOT = Path(__file__).resolve().parents[1]

@@ -11,7 +11,7 @@ import re
 from markupsafe import Markup, escape
 
 from .. import units
-from ..calc import Calc, Term
+from ..physics.calc import Calc, Term
 
 # Units in which substituted equations are shown: coherent with kPa and kJ so that a checker can
 # redo the arithmetic (kPa·m³ = kJ); temperatures in equations are always absolute (K).

@@ -11,8 +11,13 @@ import os
 from importlib import resources
 from pathlib import Path
 
-from .. import methods, units
-from . import format as fmt
+import re
+from urllib.parse import unquote, urlsplit
+
+from .. import units
+from ..engine import software_versions
+from . import format as fmt, methods
+from .charts import diagrams, sweep_chart
 
 CAUTIONS = (
     "Compressed gas stores energy. A vessel, cylinder or pipe that fails at pressure can release it "
@@ -89,16 +94,10 @@ def context(results) -> dict:
     eos_nums = [ref_no[k] for k in getattr(results.gas, "eos_refs", ()) if k in ref_no]
     input_legs = {i.path: _leg_of(job, i.path) for i in job.inputs}
     lines = job.text.splitlines()
-    from ..engine import software_versions  # versions only; no computation
-
     charts = {}
     if results.legs:
-        from .charts import diagrams
-
         charts = diagrams(results, system)
     if results.extra.get("sweep"):
-        from .charts import sweep_chart
-
         charts["sweep"] = sweep_chart(results.extra["sweep"], system)
     return {
         "r": results,
@@ -131,8 +130,6 @@ def job_file_name(job) -> str:
 
 def _leg_of(job, path: str) -> str:
     """The name of the leg an input path belongs to (legs[1].end.volume → its leg name), else ''."""
-    import re
-
     m = re.match(r"legs\[(\d+)\]", path)
     if not m:
         return ""
@@ -163,8 +160,6 @@ class _Fetcher:
                     if url.startswith("data:"):
                         return super().fetch(url, headers)
                     if url.startswith("file://"):
-                        from urllib.parse import unquote, urlsplit
-
                         path = Path(unquote(urlsplit(url).path)).resolve()
                         if any(path.is_relative_to(r) for r in roots) and path.is_file():
                             mime = mimetypes.guess_type(path.name)[0] or "application/octet-stream"
@@ -219,7 +214,5 @@ def _epoch(date_text: str) -> int:
 
 def safe_stem(number: str, revision: str) -> str:
     """A file name stem from calc number and revision: letters, digits, '-', '_' and '.' only."""
-    import re
-
     stem = re.sub(r"[^A-Za-z0-9._-]+", "_", f"{number}_rev{revision}").strip("._") or "calc"
     return stem[:120]

@@ -15,6 +15,7 @@ import re
 from markupsafe import Markup, escape
 
 from .. import units
+from ..job.source import dump as dump_yaml
 from . import format as fmt
 from .render import _env, _Fetcher, fonts_dir, templates_dir
 
@@ -55,9 +56,7 @@ def _call_text(name: str, spec: dict) -> str:
 
 
 def _job_text(job: dict) -> str:
-    import yaml
-
-    return yaml.safe_dump(job, sort_keys=False, default_flow_style=None, width=100, allow_unicode=True).rstrip()
+    return dump_yaml(job, default_flow_style=None, width=100).rstrip()
 
 
 def context(data: dict) -> dict:
@@ -101,11 +100,9 @@ def render_html(data: dict) -> str:
     return env.get_template("selftest.html").render(**context(data))
 
 
-def render_pdf(report, results_json: str) -> bytes:
+def render_pdf(results_json: str, case_files: list[tuple[str, str]]) -> bytes:
     """The verification report as PDF bytes, with its JSON and the case files attached."""
     from weasyprint import HTML, Attachment
-
-    from .._cases import case_files
 
     data = json.loads(results_json)
     html = render_html(data)
@@ -113,7 +110,7 @@ def render_pdf(report, results_json: str) -> bytes:
     attachments = [Attachment(string=results_json.encode("utf-8"), name="calcdoc-selftest.json",
                               description="Verification results (JSON)", created=stamp, modified=stamp,
                               relationship="Data")]
-    for name, text in case_files():
+    for name, text in case_files:
         attachments.append(Attachment(string=text.encode("utf-8"), name=name, description="Verification case file",
                                       created=stamp, modified=stamp, relationship="Source"))
     doc = HTML(string=html, base_url=templates_dir().as_uri() + "/", url_fetcher=_Fetcher.make())

@@ -23,8 +23,11 @@ import re
 from dataclasses import dataclass, field
 from pathlib import Path
 
-from .errors import CalcdocError
-from .results import RESULTS_SCHEMA
+from ..engine import run
+from ..engine.results import RESULTS_SCHEMA
+from ..errors import CalcdocError
+from ..job import loads
+from ..report.jsonfile import dumps
 
 __all__ = ["Finding", "Verification", "VerifyError", "read_package", "verify"]
 
@@ -176,10 +179,6 @@ def _first_difference(attached: bytes, given: bytes, name: str, context: int = 0
 
 
 def _rerun(v: Verification, pkg: Package) -> None:
-    from .engine import run
-    from .jobfile import loads
-    from .results import dumps
-
     try:
         text = dumps(run(loads(pkg.job_data, pkg.job_name)))
     except CalcdocError as exc:

@@ -1,13 +1,12 @@
 """Results of a job: states, legs, checks and warnings, and their JSON form (the contract)."""
 from __future__ import annotations
 
-import json
 import math
 from dataclasses import dataclass, field
 from typing import Any
 
-from .calc import Calc
-from .gas import State
+from ..physics.calc import Calc
+from ..physics.gas import State
 
 RESULTS_SCHEMA = "calcdoc-results/1"
 
@@ -62,12 +61,6 @@ class Results:
     @property
     def passed(self) -> bool:
         return all(c.status == "pass" for c in self.checks)
-
-    def _repr_html_(self) -> str:
-        """States, legs and checks as tables, for notebooks."""
-        from .report.notebook import results_html
-
-        return results_html(self)
 
     def methods_used(self) -> list[str]:
         """Method ids in first-use order over the whole job."""
@@ -148,8 +141,3 @@ def to_json(res: Results) -> dict:
         out.pop("mass")
     out.update(res.extra)
     return out
-
-
-def dumps(res: Results) -> str:
-    """The results file as text: sorted by our key order, fixed float formatting, no NaN."""
-    return json.dumps(to_json(res), indent=2, ensure_ascii=False, allow_nan=False) + "\n"

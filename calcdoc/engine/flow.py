@@ -10,17 +10,21 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-from ._flowjob import LegOptions, Staging, direction_problem, problem_at, read_options
-from ._flowlegs import Ctx, MeasuredEndError, heat_exchanger, machine, reversible, throttle
-from ._flowpath import Eos, TwoPhaseError
-from .calc import Calc, Term
-from .engine import job_basis, make_gas, saturation_near, site_calcs, software_versions
-from .errors import JobError, PhysicsError
-from .gas import RealGas, State
-from .jobfile import Job, LegSpec
-from .processes import LegResult
+import dataclasses
+
+from ..errors import JobError, PhysicsError
+from ..job.flowopts import direction_problem
+from ..job.model import Input, Job, LegOptions, LegSpec, Staging
+from ..physics.calc import Calc, Term
+from ..physics.closed import LegResult
+from ..physics.flowlegs import Ctx, MeasuredEndError, heat_exchanger, machine, reversible, throttle
+from ..physics.flowpath import Eos, TwoPhaseError
+from ..physics.gas import RealGas, State
+from ..physics.staging import stage_ratio_calc, suction_pressures
+from ..units import display
+from .common import job_basis, make_gas, saturation_near, site_calcs, software_versions
+from .diagnose import ideal_condensation_warnings, phase_warnings
 from .results import Results, StateRecord
-from .staging import stage_ratio_calc, suction_pressures
 
 __all__ = ["FlowResults", "run_flow"]
 
@@ -44,7 +48,6 @@ class FlowResults(Results):
 
 def run_flow(job: Job) -> FlowResults:
     """Compute a steady-flow job: states, legs (with staging expanded), totals and warnings."""
-    job, options = read_options(job)
     gas, gas_calcs = make_gas(job)
     eos = Eos(gas) if isinstance(gas, RealGas) else None
     ctx = Ctx(gas, eos, 0.0)
@@ -64,16 +67,16 @@ def run_flow(job: Job) -> FlowResults:
     legs: list[LegResult] = []
     staging_json = []
     s = s1
-    for leg, opt in zip(job.legs, options):
+    for leg in job.legs:
         try:
-            made, info = _leg(job, ctx, leg, opt, len(legs) + 1, s)
+            made, info = _leg(job, ctx, leg, leg.options, len(legs) + 1, s)
         except TwoPhaseError as exc:
             target = (leg.end.get("pressure") or leg.end.get("pressure_ratio") or leg.end.get("temperature"))
-            raise problem_at(job, target, f"leg '{leg.name}' ({leg.process}): {exc}",
+            raise _problem_at(job, target, f"leg '{leg.name}' ({leg.process}): {exc}",
                              "this leg kind is computed for a single phase only: end it above the saturation "
                              "pressure, start it warmer, or use a throttle (which gives a two-phase outlet)") from None
         except MeasuredEndError as exc:
-            raise problem_at(job, leg.end["temperature"], f"leg '{leg.name}': {exc}", exc.valid) from None
+            raise _problem_at(job, leg.end["temperature"], f"leg '{leg.name}': {exc}", exc.valid) from None
         except PhysicsError as exc:
             raise JobError([job.problem(f"{leg.path}.end", f"leg '{leg.name}': {exc}",
                                         "check the end target, the efficiency and the gas against the start of "
@@ -92,8 +95,6 @@ def run_flow(job: Job) -> FlowResults:
             s = res.end
     records = tuple(StateRecord(k + 1, str(k + 1), st, V_dot=ctx.m_dot * st.v)
                     for k, st in enumerate([s1] + [leg.end for leg in legs]))
-    from .diagnose import ideal_condensation_warnings
-
     warnings += ideal_condensation_warnings(job, gas, legs, s1)   # ideal model of a named fluid: Z, condensation
     totals = _totals(legs)
     basis = job_basis(job, gas)
@@ -190,7 +191,7 @@ def _drop(job: Job, drop, i: int, P1: float) -> tuple[float, Calc | None]:
     if drop.inp is None:
         return P1, None
     if P2 <= 0:
-        raise problem_at(job, drop.inp, f"the pressure drop {drop.inp.entered} is larger than the inlet pressure "
+        raise _problem_at(job, drop.inp, f"the pressure drop {drop.inp.entered} is larger than the inlet pressure "
                          f"({P1 / 1e3:.6g} kPa)", "give a drop smaller than the inlet pressure")
     if drop.fraction is not None:
         return P2, Calc(f"P_{j}", P2, "Pa", "{P1}·(1 − {d})", "flow.pressure_drop",
@@ -214,7 +215,7 @@ def _train(job, ctx, leg, st: Staging, N, i, s, P_out, eta_p, eta_s, eta_m) -> l
         s, i = res.end, i + 1
         if k < N - 1:
             if st.T_cool.si > s.T:
-                raise problem_at(job, st.T_cool, f"the intercooler outlet {st.T_cool.entered} is above the discharge "
+                raise _problem_at(job, st.T_cool, f"the intercooler outlet {st.T_cool.entered} is above the discharge "
                                  f"temperature of stage {k + 1} ({s.T - 273.15:.4g} °C)",
                                  "give an intercooler outlet below the stage discharge temperature")
             P2, dc = _drop(job, d, i, s.P)
@@ -241,7 +242,7 @@ def _staged(job, ctx, leg, st: Staging, i, s, P_out, eta_p, eta_s, eta_m) -> tup
             if Tmax <= limit:
                 break
         else:
-            raise problem_at(job, st.T_max, f"no number of stages up to {st.max_stages} keeps every discharge at or "
+            raise _problem_at(job, st.T_max, f"no number of stages up to {st.max_stages} keeps every discharge at or "
                              f"below {st.T_max.entered} ({st.max_stages} stages give {_temp_text(tried[-1][1], job)})",
                              "raise max_stages, lower the intercooler outlet temperature, or review the limit")
         N = tried[-1][0]
@@ -259,15 +260,11 @@ def _staged(job, ctx, leg, st: Staging, i, s, P_out, eta_p, eta_s, eta_m) -> tup
 
 
 def _with(res: LegResult, **kw) -> LegResult:
-    import dataclasses
-
     return dataclasses.replace(res, **kw)
 
 
 def _temp_text(T: float, job) -> str:
     """A temperature for a sentence of the report, in the job's unit system."""
-    from .units import display
-
     v, u = display(T, "K", job.units)
     return f"{v:.4g} {u}"
 
@@ -311,11 +308,14 @@ def _totals(legs: list[LegResult]) -> tuple[Calc, ...]:
 def _phase_warnings(ctx: Ctx, label: str, states: list[State], check_all: bool, system: str) -> list[str]:
     """Warnings for states in or near the two-phase region: pure fluids against the saturation
     temperature, mixtures against the dew temperature of the phase envelope."""
-    from .diagnose import phase_warnings
-
     eos = ctx.eos
     if eos is None:
         return []
     liquid = [s for s in states if s.phase in ("two-phase", "liquid", "supercritical liquid")]
     pick = liquid or (states if (eos.mixture or check_all) else [states[0], states[-1]])
     return phase_warnings(eos.dew_temperature, label, pick, system, NEAR_DEW_K, "dew temperature")
+
+
+def _problem_at(job: Job, inp: Input, found: str, valid: str = "") -> JobError:
+    """A JobError at an input's line and column."""
+    return JobError([job.problem_at(inp, found, valid)])

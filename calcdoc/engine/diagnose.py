@@ -6,58 +6,26 @@ Problem that points at the key to fix, in the trade's words. Nothing here comput
 """
 from __future__ import annotations
 
-import difflib
-
-from .errors import Problem
+from ..errors import PhysicsError, Problem
+from ..physics.fluids import COMMON_FLUIDS, closest_fluids, known_fluid
+from ..physics.gas import RealGas
+from ..units import say
 
 __all__ = ["fluid_problems", "start_state_problem", "ideal_condensation_warnings", "phase_warnings"]
-
-_COMMON = "use a CoolProp fluid name such as Nitrogen, Air, CarbonDioxide, Methane, Hydrogen"
-
-
-def _fluid_names() -> dict[str, str]:
-    """Every name CoolProp accepts (fluid names and their aliases) → the fluid's own name."""
-    import CoolProp.CoolProp as CP
-
-    names = CP.get_global_param_string("FluidsList").split(",")
-    out = {nm: nm for nm in names}
-    for nm in names:
-        try:
-            for a in CP.get_fluid_param_string(nm, "aliases").split(","):
-                if a:
-                    out.setdefault(a, nm)
-        except ValueError:
-            continue
-    return out
-
-
-def known_fluid(name: str) -> bool:
-    """True when CoolProp knows ``name`` as a fluid or an alias of one."""
-    import CoolProp.CoolProp as CP
-
-    try:
-        CP.get_fluid_param_string(name, "name")
-    except ValueError:
-        return False
-    return True
-
 
 def fluid_problems(job) -> list[Problem]:
     """A Problem for each fluid or mixture component CoolProp does not know, at its own key."""
     spec = job.gas
     names = [("gas.fluid", spec.fluid)] if spec.fluid else [(f"gas.mixture.{c}", c) for c, _ in spec.mixture]
     out: list[Problem] = []
-    known = None
     for path, nm in names:
         if known_fluid(nm):
             continue
-        if known is None:
-            known = _fluid_names()
-        close = list(dict.fromkeys(known[c] for c in difflib.get_close_matches(nm, list(known), n=6, cutoff=0.6)))[:3]
+        close = closest_fluids(nm)
         hint = f"did you mean {' or '.join(repr(c) for c in close)}? " if close else ""
         what = "mixture component" if path.startswith("gas.mixture") else "fluid"
         out.append(job.problem(path, f"'{nm}' is not a {what} the equation-of-state library (CoolProp) knows",
-                               hint + _COMMON))
+                               hint + COMMON_FLUIDS))
     return out
 
 
@@ -91,9 +59,6 @@ def ideal_condensation_warnings(job, gas, legs, start) -> list[str]:
     spec = job.gas
     if gas.model != "ideal" or not spec.fluid:
         return []
-    from .errors import PhysicsError
-    from .gas import RealGas
-
     try:
         real = RealGas(spec.fluid)
     except PhysicsError:  # the warning is a courtesy; an unknown fluid is reported elsewhere
@@ -118,8 +83,6 @@ Z_TOLERANCE = 0.02
 
 def _ideal_deviation(real, fluid: str, checks) -> list[str]:
     """A warning where the real fluid's Z departs from 1 by more than Z_TOLERANCE at a state of the job."""
-    from .errors import PhysicsError
-
     worst = None
     for label, states in checks:
         for s in (states[0], states[-1]):
@@ -141,8 +104,6 @@ def phase_warnings(dew_temperature, label: str, states, system: str, near_K: flo
     """Warnings for states in or near the two-phase region, in the job's units: the first state found liquid or
     two-phase, else the state nearest its ``what`` ("saturation temperature" of a pure fluid, "dew temperature"
     of a mixture) when nearer than ``near_K``. ``dew_temperature(P)`` gives that temperature or None."""
-    from .units import say
-
     for s in states:
         if s.phase in ("two-phase", "liquid", "supercritical liquid"):
             dew = dew_temperature(s.P)

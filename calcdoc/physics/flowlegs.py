@@ -12,11 +12,11 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from ._flowpath import Eos, Point, TwoPhaseError, polytropic_path, solve_T
+from .flowpath import Eos, Point, TwoPhaseError, polytropic_path, solve_T
 from .calc import Calc, Term
-from .errors import PhysicsError
+from ..errors import PhysicsError
 from .gas import R_U, Gas, State
-from .processes import LegResult, n_from_states
+from .closed import LegResult, n_from_states
 
 __all__ = ["Ctx", "MeasuredEndError", "machine", "heat_exchanger", "throttle", "reversible"]
 

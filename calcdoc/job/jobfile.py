@@ -1,23 +1,27 @@
 """The job file: YAML in, a validated :class:`Job` out, or every problem found at once.
 
 This module knows YAML and units, nothing of thermodynamics. Every value keeps the line and column
-it came from so that later errors (from the engine) can still point into the file.
+it came from so that later errors (from the engine) can still point into the file. The file is read in
+two passes: the sections every job has (title block, site, gas, start, legs), then, when those are
+sound, what refers to them (the steady-flow leg options, the limits, the sweep).
 """
 from __future__ import annotations
 
+import dataclasses
 import datetime as _dt
-import difflib
 import hashlib
-import math
-from dataclasses import dataclass, field
 from pathlib import Path
-from typing import Any
 
-from . import units
-from ._yaml import MAX_BYTES as _MAX_BYTES, Node, decode, load as _load_yaml
-from .errors import JobError, Problem
+from .. import units
+from ..errors import JobError, Problem
+from .flowopts import FLOW_OPTION_KEYS, chain_problems, read_options
+from .limits import Places, read_limits
+from .model import GasSpec, Input, Job, LegSpec, Site, StartSpec, TitleBlock
+from .reader import Reader, describe as _describe
+from .source import MAX_BYTES as _MAX_BYTES, Node, decode, leaves, load as _load_yaml
+from .sweep import read_sweep
 
-__all__ = ["CLOSED_PROCESSES", "FLOW_PROCESSES", "Input", "Job", "LegSpec", "load", "loads"]
+__all__ = ["CLOSED_PROCESSES", "FLOW_PROCESSES", "load", "loads"]
 
 SCHEMA_VERSION = 1
 CLOSED_PROCESSES = ("polytropic", "isentropic", "isothermal", "isobaric", "isochoric")
@@ -26,131 +30,6 @@ CLOSED_TARGETS = ("pressure", "temperature", "volume", "pressure_ratio", "volume
 FLOW_TARGETS = ("pressure", "temperature", "pressure_ratio")
 TARGET_KIND = {"pressure": "pressure", "temperature": "temperature", "volume": "volume",
                "pressure_ratio": "dimensionless", "volume_ratio": "dimensionless"}
-
-
-@dataclass(frozen=True)
-class Input:
-    """A quantity read from the job file: SI value, as entered, and where it was written."""
-
-    si: float
-    unit: str
-    entered: str
-    path: str
-    line: int
-    col: int
-    gauge: bool = False
-    percent: bool = False
-    kind: str = ""          # the kind of quantity (units.DIMENSIONS key) where known
-
-    @property
-    def difference(self) -> bool:
-        """A difference (pressure drop, temperature difference): shown without gauge/absolute or offset."""
-        return self.kind in ("pressure_difference", "temperature_difference")
-
-    @property
-    def unmarked_pressure(self) -> bool:
-        """A pressure in psi or kgf/cm2 written without an a/g marker: taken as absolute, though in much
-        practice these units are read as gauge (plain bar, kPa and MPa are read as absolute)."""
-        parts = self.entered.split(maxsplit=1)
-        return self.kind == "pressure" and len(parts) == 2 and parts[1].strip() in ("psi", "kgf/cm2", "kg/cm2")
-
-
-@dataclass(frozen=True)
-class TitleBlock:
-    number: str
-    title: str
-    project: str
-    revision: str
-    date: str
-    client: str = ""
-    purpose: str = ""
-    prepared_by: str = ""
-    checked_by: str = ""
-    approved_by: str = ""
-    drawings: tuple[str, ...] = ()
-    history: tuple[tuple[str, str, str], ...] = ()   # (revision, date, description)
-
-
-@dataclass(frozen=True)
-class Site:
-    P_atm: float | None          # absolute atmospheric pressure [Pa], None when not given
-    source: str                  # "given", "standard atmosphere at elevation" or "not given"
-    atmosphere: Input | None = None
-    elevation: Input | None = None
-
-
-@dataclass(frozen=True)
-class GasSpec:
-    model: str                                  # "real" or "ideal"
-    fluid: str | None = None
-    mixture: tuple[tuple[str, float], ...] = ()  # (component, mole fraction)
-    k: Input | None = None
-    molar_mass: Input | None = None
-    R: Input | None = None
-
-
-@dataclass(frozen=True)
-class StartSpec:
-    pressure: Input
-    temperature: Input
-    volume: Input | None = None
-    mass: Input | None = None
-    mass_flow: Input | None = None
-    molar_flow: Input | None = None
-    volume_flow: Input | None = None
-    standard_volume_flow: Input | None = None
-    standard_pressure: Input | None = None
-    standard_temperature: Input | None = None
-
-
-@dataclass(frozen=True)
-class LegSpec:
-    name: str
-    process: str
-    path: str                       # "legs[0]"
-    line: int
-    col: int
-    end: dict[str, Input]           # target name → value (pressure, temperature, volume, ratios)
-    n: Input | None = None
-    options: dict[str, Any] = field(default_factory=dict)   # process-specific (efficiency, pressure_drop, ...)
-    note: str = ""
-
-
-@dataclass(frozen=True)
-class Job:
-    """A validated job: everything the engine needs, each input with its place in the file."""
-
-    name: str                       # the file name as given by the user (for messages)
-    data: bytes                     # the job file, byte for byte
-    sha256: str
-    calc: TitleBlock
-    units: str                      # report unit system: "SI" or "US"
-    site: Site
-    gas: GasSpec
-    system: str                     # "closed" or "flow"
-    start: StartSpec
-    legs: tuple[LegSpec, ...]
-    limits: tuple[Node, ...] = ()
-    assumptions: tuple[str, ...] = ()
-    inputs: tuple[Input, ...] = ()  # every quantity in file order, for the report
-    where: dict[str, tuple[int, int]] = field(default_factory=dict)
-    tree: Node | None = None        # the parsed file, for later validators (limits, sweeps)
-
-    @property
-    def text(self) -> str:
-        return self.data.decode("utf-8").lstrip("\ufeff")
-
-    def locate(self, path: str) -> tuple[int, int]:
-        """Line and column of a key path, or of its nearest parent that is known."""
-        while path:
-            if path in self.where:
-                return self.where[path]
-            path = path.rsplit(".", 1)[0] if "." in path else (path.rsplit("[", 1)[0] if "[" in path else "")
-        return (0, 0)
-
-    def problem(self, path: str, found: str, valid: str = "") -> Problem:
-        line, col = self.locate(path)
-        return Problem(self.name, line, col, path, found, valid)
 
 
 def load(path: str | Path) -> Job:
@@ -177,139 +56,25 @@ def loads(data: bytes | str, name: str = "<job>") -> Job:
     tree = _load_yaml(text, name)
     v = _Validator(name)
     job = v.job(tree, data)
+    if v.problems or job is None:
+        raise JobError(_ordered(v.problems))
+    job = v.references(tree, job)
     if v.problems:
-        raise JobError(sorted(v.problems, key=lambda p: (p.line, p.column)))
-    _check_sections(job)
+        raise JobError(_ordered(v.problems))
     return job
 
 
-def _check_sections(job: Job) -> None:
-    """Validate the sections that their own modules read (limits, sweep) and raise every problem."""
-    from .checks import limit_problems
-    from .sweep import sweep_problems
-
-    problems = limit_problems(job) + sweep_problems(job)
-    if job.system == "flow":
-        from ._flowjob import option_problems
-
-        problems += option_problems(job)
-    if problems:
-        raise JobError(sorted(problems, key=lambda p: (p.line, p.column)))
+def _ordered(problems: list[Problem]) -> list[Problem]:
+    return sorted(problems, key=lambda p: (p.line, p.column))
 
 
 # ----------------------------------------------------------------------------------------------
-class _Validator:
+class _Validator(Reader):
+    """Reads the sections of a job file into the job model."""
+
     def __init__(self, name: str):
-        self.name = name
-        self.problems: list[Problem] = []
-        self.inputs: list[Input] = []
-        self.where: dict[str, tuple[int, int]] = {}
-        self.atm: float | None = None
-
-    # -- helpers --------------------------------------------------------------------------------
-    def add(self, node: Node, found: str, valid: str = "", path: str | None = None) -> None:
-        line, col = node.where
-        self.problems.append(Problem(self.name, line, col, node.path if path is None else path, found, valid))
-
-    def mapping(self, node: Node, allowed: tuple[str, ...], required: tuple[str, ...] = (), what: str = "") -> dict[str, Node]:
-        if node.kind != "map":
-            self.add(node, f"expected a mapping of keys{(' for ' + what) if what else ''}, found {_describe(node)}",
-                     f"valid keys here: {', '.join(allowed)}")
-            return {}
-        self.where[node.path] = node.where
-        suggested: set[str] = set()
-        for key, child in node.value.items():
-            self.where[child.path] = child.where
-            if key not in allowed:
-                close = difflib.get_close_matches(key, allowed, n=1, cutoff=0.6)
-                hint = f"did you mean '{close[0]}'? " if close else ""
-                if close and close[0] in required and close[0] not in node.value:
-                    suggested.add(close[0])
-                    hint = f"did you mean '{close[0]}' (a required key)? "
-                self.add(child, f"unknown key '{key}'", f"{hint}valid keys here: {', '.join(allowed)}")
-        for key in required:
-            if key not in node.value and key not in suggested:
-                self.add(node, f"missing required key '{key}'", _REQUIRED_HINT.get(key, ""),
-                         path=f"{node.path}.{key}" if node.path else key)
-        return {k: c for k, c in node.value.items() if k in allowed}
-
-    def text(self, node: Node | None, default: str = "") -> str:
-        if node is None:
-            return default
-        if node.kind != "scalar" or node.value is None or isinstance(node.value, bool):
-            self.add(node, f"expected text, found {_describe(node)}", "write plain text")
-            return default
-        if isinstance(node.value, (_dt.date, _dt.datetime)):
-            return node.value.isoformat()
-        return str(node.value)
-
-    def number(self, node: Node, lo: float | None = None, hi: float | None = None, lo_open=False, hi_open=False,
-               what: str = "a number") -> float | None:
-        val = node.value
-        if node.kind == "scalar" and isinstance(val, str):
-            try:
-                val = float(val)
-            except ValueError:
-                pass
-        if node.kind != "scalar" or isinstance(val, bool) or not isinstance(val, (int, float)) or not math.isfinite(val):
-            self.add(node, f"expected {what}, found {_describe(node)}", "write a plain number, for example 1.3")
-            return None
-        val = float(val)
-        if (lo is not None and (val < lo or (lo_open and val == lo))) or (hi is not None and (val > hi or (hi_open and val == hi))):
-            rng = f"{'(' if lo_open else '['}{'' if lo is None else _g(lo)}, {'' if hi is None else _g(hi)}{')' if hi_open else ']'}"
-            self.add(node, f"{what} of {_g(val)} is out of range", f"valid range is {rng}")
-            return None
-        return val
-
-    def enum(self, node: Node | None, choices: tuple[str, ...], default: str | None = None) -> str | None:
-        if node is None:
-            return default
-        val = node.value if node.kind == "scalar" else None
-        if isinstance(val, str) and val not in choices:
-            # the trade writes Polytropic, REAL, si: the choice is the same word
-            folded = {c.casefold(): c for c in choices}
-            val = folded.get(val.strip().casefold(), val)
-        if not isinstance(val, str) or val not in choices:
-            close = difflib.get_close_matches(str(val), choices, n=1, cutoff=0.6) if isinstance(val, str) else []
-            hint = f"did you mean '{close[0]}'? " if close else ""
-            self.add(node, f"'{val if node.kind == 'scalar' else _describe(node)}' is not one of the choices",
-                     f"{hint}valid: {', '.join(choices)}")
-            return None
-        return val
-
-    def quantity(self, node: Node | None, kind: str, positive: bool = True, allow_percent: bool = False,
-                 allow_gauge: bool = True) -> Input | None:
-        if node is None:
-            return None
-        if node.kind != "scalar":
-            self.add(node, f"expected a {kind.replace('_', ' ')} with its unit, found {_describe(node)}",
-                     "write a number and a unit on one line, for example 'pressure: 7 barg'")
-            return None
-        try:
-            parsed = units.parse_quantity(node.value, kind, atmosphere=self.atm, allow_percent=allow_percent)
-        except units.UnitParseError as exc:
-            self.add(node, exc.found, exc.valid)
-            return None
-        if parsed.gauge and not allow_gauge:
-            self.add(node, f"'{parsed.entered}' is a gauge pressure", "give this value as an absolute pressure")
-            return None
-        if not math.isfinite(parsed.si):
-            self.add(node, f"'{parsed.entered}' is not a finite value", "write a finite number")
-            return None
-        if positive and parsed.si <= 0.0:
-            if kind == "pressure" and parsed.gauge:
-                self.add(node, f"'{parsed.entered}' is below full vacuum (absolute pressure {parsed.si / 1e3:.4g} kPa "
-                         f"with the site atmosphere of {self.atm / 1e3:.4g} kPa)",
-                         "a gauge pressure cannot be lower than minus the atmospheric pressure")
-            elif kind == "temperature":
-                self.add(node, f"'{parsed.entered}' is at or below absolute zero", "give a temperature above 0 K (−273.15 °C)")
-            else:
-                self.add(node, f"'{parsed.entered}' is not positive", f"a {kind.replace('_', ' ')} must be greater than zero")
-            return None
-        inp = Input(parsed.si, parsed.unit, parsed.entered, node.path, *node.where, gauge=parsed.gauge,
-                    percent=parsed.percent, kind=kind)
-        self.inputs.append(inp)
-        return inp
+        super().__init__(name, required_hints=_REQUIRED_HINT)
+        self.option_nodes: dict[str, dict[str, Node]] = {}
 
     # -- sections ---------------------------------------------------------------------------------
     def job(self, tree: Node, data: bytes) -> Job | None:
@@ -326,22 +91,33 @@ class _Validator:
         start = self.start(top.get("start"), system)
         legs = self.legs(top.get("legs"), system)
         assumptions = tuple(self.text(n) for n in self.seq(top.get("assumptions")))
-        limits = tuple(self.seq(top.get("limits")))
+        self.seq(top.get("limits"))
         if self.problems or calc is None or gas is None or start is None or system is None or unit_system is None:
             return None
         return Job(self.name, data, hashlib.sha256(data).hexdigest(), calc, unit_system, site, gas, system,
-                   start, tuple(legs), limits, assumptions, tuple(self.inputs), dict(self.where), tree)
+                   start, tuple(legs), (), assumptions, (), {}, leaves(tree))
 
-    def seq(self, node: Node | None) -> list[Node]:
-        if node is None:
-            return []
-        if node.kind != "seq":
-            self.add(node, f"expected a list, found {_describe(node)}", "write a list, one item a line starting with '- '")
-            return []
-        self.where[node.path] = node.where
-        for item in node.value:
-            self.where[item.path] = item.where
-        return node.value
+    def references(self, tree: Node, job: Job) -> Job:
+        """The second pass: steady-flow leg options, limits and sweep, which refer to the legs and inputs."""
+        legs = job.legs
+        if job.system == "flow":
+            opts = read_options(self, [(leg, self.option_nodes[leg.path]) for leg in legs], self._locate)
+            legs = tuple(dataclasses.replace(leg, options=o) for leg, o in zip(legs, opts))
+        places = Places(legs)
+        limits = read_limits(self, self.seq(tree.value.get("limits")), job.system, places)
+        sweep = read_sweep(self, tree, job.system, places, self.inputs)
+        inputs = tuple(sorted(self.inputs, key=lambda i: (i.line, i.col)))
+        job = dataclasses.replace(job, legs=legs, limits=limits, sweep=sweep, inputs=inputs, where=dict(self.where))
+        if job.system == "flow" and not self.problems:
+            self.problems += chain_problems(job)
+        return job
+
+    def _locate(self, path: str) -> tuple[int, int]:
+        while path:
+            if path in self.where:
+                return self.where[path]
+            path = path.rsplit(".", 1)[0] if "." in path else (path.rsplit("[", 1)[0] if "[" in path else "")
+        return (0, 0)
 
     def title_block(self, node: Node | None) -> TitleBlock | None:
         if node is None:
@@ -515,7 +291,7 @@ class _Validator:
         m = self.mapping(node, allowed, required=("name", "process", "end"), what="a leg")
         if not m:
             return None
-        name = self.text(m.get("name"))
+        name = self.text(m.get("name"), required=True, what="leg name")
         pnode = m.get("process")
         pval = str(pnode.value).strip().casefold() if pnode is not None and pnode.kind == "scalar" else ""
         if not flow and pval in FLOW_PROCESSES and pval not in CLOSED_PROCESSES:
@@ -547,10 +323,11 @@ class _Validator:
                 self._check_targets(m["end"], process, given, n is not None or "n" in m, flow)
                 if not flow:
                     self._check_closed_targets(node, m["end"], process, given, "n" in m)
-        options = self._leg_options(m, process, flow)
+        if flow:
+            self.option_nodes[node.path] = {k: m[k] for k in FLOW_OPTION_KEYS if k in m}
         if not name or process is None or "end" not in m or len(end) != len(m["end"].value if m["end"].kind == "map" else ()):
             return None
-        return LegSpec(name, process, node.path, *node.where, end=end, n=n, options=options,
+        return LegSpec(name, process, node.path, *node.where, end=end, n=n,
                        note=self.text(m.get("note")))
 
     def _check_targets(self, end_node: Node, process: str | None, given: list[str], has_n: bool, flow: bool) -> None:
@@ -591,15 +368,6 @@ class _Validator:
             self.add(leg, "a polytropic leg needs its exponent n, or a measured end state to derive n from",
                      "add n (for example n: 1.3), or give the measured end pressure together with the end "
                      "temperature or volume", path=f"{leg.path}.n")
-
-    def _leg_options(self, m: dict[str, Node], process: str | None, flow: bool) -> dict[str, Any]:
-        opts: dict[str, Any] = {}
-        if not flow:
-            return opts
-        for key in ("efficiency", "pressure_drop", "mechanical_efficiency", "staging"):
-            if key in m:
-                opts[key] = m[key]   # validated by the flow engine's own reader
-        return opts
 
 
 _TOP_KEYS = ("calcdoc", "calc", "units", "site", "gas", "system", "start", "legs", "limits", "assumptions", "sweep")
@@ -648,22 +416,3 @@ def _looks_like_percent(mm: Node) -> bool:
     if not all(isinstance(v, (int, float)) and not isinstance(v, bool) for v in vals):
         return False
     return any(v > 1.0 for v in vals) and abs(sum(vals) - 100.0) <= 0.5
-
-
-def _describe(node: Node) -> str:
-    if node.kind == "map":
-        return "a mapping"
-    if node.kind == "seq":
-        return "a list"
-    v = node.value
-    if v is None:
-        return "nothing"
-    if isinstance(v, bool):
-        return f"the boolean {str(v).lower()}"
-    if isinstance(v, (int, float)):
-        return f"the number {v}"
-    return f"'{v}'"
-
-
-def _g(x: float) -> str:
-    return f"{x:.6g}"

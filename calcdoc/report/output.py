@@ -5,7 +5,9 @@ import os
 import tempfile
 from pathlib import Path
 
-from .errors import CalcdocError
+from ..errors import CalcdocError
+from .jsonfile import dumps
+from .render import render_pdf, safe_stem
 
 
 def write_atomic(target: Path, data: bytes) -> None:
@@ -27,8 +29,6 @@ def write_atomic(target: Path, data: bytes) -> None:
 
 
 def output_paths(results, out_dir: str | os.PathLike) -> tuple[Path, Path]:
-    from .report.render import safe_stem
-
     out = Path(out_dir)
     stem = safe_stem(results.job.calc.number, results.job.calc.revision)
     return out / f"{stem}.json", out / f"{stem}.pdf"
@@ -37,8 +37,6 @@ def output_paths(results, out_dir: str | os.PathLike) -> tuple[Path, Path]:
 def write(results, out_dir: str | os.PathLike, pdf: bool = True) -> list[Path]:
     """Write ``<stem>.json`` and ``<stem>.pdf`` into out_dir. Both are rendered in memory first, so
     a failure leaves any earlier report of the same job untouched."""
-    from .results import dumps
-
     out = Path(out_dir)
     try:
         out.mkdir(parents=True, exist_ok=True)
@@ -52,8 +50,6 @@ def write(results, out_dir: str | os.PathLike, pdf: bool = True) -> list[Path]:
     text = dumps(results)
     pdf_bytes = None
     if pdf:
-        from .report import render_pdf
-
         pdf_bytes = render_pdf(results, text)
     targets = [(json_path, text.encode("utf-8"))] + ([(pdf_path, pdf_bytes)] if pdf_bytes is not None else [])
     return write_all(targets)

@@ -8,18 +8,13 @@ name, bound and place), largest relative change first; unchanged values are coun
 from __future__ import annotations
 
 import dataclasses
-import datetime as _dt
 import math
-import subprocess
 from dataclasses import dataclass
-from pathlib import Path
 
-from ._yaml import Node
-from .errors import JobError, Problem
-from .jobfile import Job
+from ..job.model import Job
+from .results import to_json
 
-__all__ = ["Diff", "InputChange", "ResultChange", "compare", "diff_json", "diff_text", "load_revision",
-           "with_changes"]
+__all__ = ["Diff", "InputChange", "ResultChange", "compare", "diff_json", "with_changes"]
 
 #: Two results count as equal when they differ by less than this fraction of the largest value of the
 #: same unit in either revision (round-off, such as an entropy change of 1e-16 on an isentropic leg).
@@ -56,52 +51,8 @@ class Diff:
     unchanged: int           # results compared and found equal
 
 
-def _scalar(node: Node) -> str:
-    v = node.value
-    if isinstance(v, (_dt.date, _dt.datetime)):
-        return v.isoformat()
-    if v is None:
-        return "null"
-    if isinstance(v, bool):
-        return str(v).lower()
-    return str(v)
-
-
-def input_leaves(job: Job) -> dict[str, tuple[str, int]]:
-    """Every scalar of the job file: path → (value as entered, line)."""
-    out: dict[str, tuple[str, int]] = {}
-
-    def walk(node: Node, path: str) -> None:
-        if node.kind == "map":
-            for k, child in node.value.items():
-                walk(child, f"{path}.{k}" if path else k)
-        elif node.kind == "seq":
-            seen: set[str] = set()
-            for i, child in enumerate(node.value):
-                tag = str(i)
-                if child.kind == "map":
-                    for key in ("name", "revision"):
-                        if key in child.value and child.value[key].kind == "scalar":
-                            tag = _scalar(child.value[key])
-                            break
-                if tag in seen:
-                    tag = str(i)
-                seen.add(tag)
-                walk(child, f"{path}[{tag}]")
-            if not node.value:
-                out[path] = ("[]", node.line)
-        else:
-            out[path] = (_scalar(node), node.where[0])
-
-    if job.tree is not None:
-        walk(job.tree, "")
-    return out
-
-
 def result_values(res) -> dict[str, tuple[float | str | None, str]]:
     """The results to compare, from the results-file contract: key → (value, unit)."""
-    from .results import to_json
-
     d = to_json(res)
     out: dict[str, tuple[float | str | None, str]] = {}
     if d.get("mass"):
@@ -127,7 +78,8 @@ def result_values(res) -> dict[str, tuple[float | str | None, str]]:
 
 def compare(old_job: Job, new_job: Job, old_res, new_res) -> Diff:
     """What changed from the old revision to the new one."""
-    a, b = input_leaves(old_job), input_leaves(new_job)
+    a = {p: (v, ln) for p, v, ln in old_job.leaves}
+    b = {p: (v, ln) for p, v, ln in new_job.leaves}
     inputs = []
     for path in list(b) + [p for p in a if p not in b]:
         old, new = a.get(path, (None, 0))[0], b.get(path, (None, 0))
@@ -166,40 +118,6 @@ def compare(old_job: Job, new_job: Job, old_res, new_res) -> Diff:
                 tuple(inputs), tuple(moved), unchanged)
 
 
-def _show(value, unit: str, system: str, difference: bool = False) -> str:
-    from . import units
-
-    if value is None:
-        return "—"
-    if isinstance(value, str):
-        return value
-    if not unit:
-        return f"{value:.6g}"
-    v, u = units.display(value, unit, system, difference=difference)
-    return f"{v:.6g} {u}".strip()
-
-
-def diff_text(diff: Diff, system: str = "SI") -> str:
-    """The comparison for a terminal."""
-    lines = [f"Changes from {diff.old_label} to {diff.new_label}", ""]
-    lines.append(f"Inputs changed ({len(diff.inputs)}):" if diff.inputs else "Inputs: none changed.")
-    for c in diff.inputs:
-        lines.append(f"  {c.path}: {c.old if c.old is not None else '(not given)'} → "
-                     f"{c.new if c.new is not None else '(removed)'}")
-    lines.append("")
-    lines.append(f"Results and checks that moved ({len(diff.moved)}), largest relative change first:"
-                 if diff.moved else "Results and checks: none moved.")
-    for c in diff.moved:
-        change = ""
-        if c.change is not None:
-            change = f"   change {_show(c.change, c.unit, system, difference=True)}"
-            change += f" ({c.percent:+.3g} %)" if c.percent is not None else ""
-        lines.append(f"  {c.key}: {_show(c.old, c.unit, system, c.difference)} → "
-                     f"{_show(c.new, c.unit, system, c.difference)}{change}")
-    lines.append(f"  {diff.unchanged} result{'s' if diff.unchanged != 1 else ''} unchanged.")
-    return "\n".join(lines) + "\n"
-
-
 def diff_json(diff: Diff) -> dict:
     """The comparison as data (results JSON ``changes_since``; the report's section reads it)."""
     def num(x):
@@ -220,23 +138,3 @@ def with_changes(results, old_job: Job, old_results):
     """The new results carrying the comparison with an older revision (for the report section)."""
     d = compare(old_job, results.job, old_results, results)
     return dataclasses.replace(results, extra={**results.extra, "changes_since": diff_json(d)})
-
-
-def load_revision(path: str | Path, rev: str) -> Job:
-    """A job file as it stood at a git revision (``git show REV:./file`` in the file's folder)."""
-    from .jobfile import loads
-
-    p = Path(path)
-    name = f"{path}@{rev}"
-    if rev.startswith("-") or any(ch in rev for ch in "\n\r\0"):
-        raise JobError([Problem(name, 0, 0, "", f"'{rev}' is not a git revision", "give a revision such as HEAD~1 or a tag")])
-    try:
-        proc = subprocess.run(["git", "show", f"{rev}:./{p.name}"], cwd=str(p.parent.resolve()),
-                              capture_output=True, timeout=60)
-    except FileNotFoundError:
-        raise JobError([Problem(name, 0, 0, "", "git is not installed", "install git or compare two files")]) from None
-    if proc.returncode != 0:
-        msg = proc.stderr.decode("utf-8", "replace").strip().splitlines()
-        raise JobError([Problem(name, 0, 0, "", f"git cannot show the file at {rev}: {msg[-1] if msg else 'unknown error'}",
-                                "give a revision in which the file exists (git log -- FILE lists them)")])
-    return loads(proc.stdout, name)

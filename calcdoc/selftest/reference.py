@@ -89,7 +89,7 @@ FUNCTIONS: dict[str, _Fn] = {
     "PropsSI": _Fn(_coolprop_propssi, "CoolProp", "CoolProp.CoolProp.PropsSI (high-level interface), called directly"),
     "quad": _Fn(_scipy_quad, "scipy", f"scipy.integrate.quad, adaptive Gauss–Kronrod, epsrel = {QUAD_EPSREL:g}"),
     "brentq": _Fn(_scipy_brentq, "scipy", "scipy.optimize.brentq, bracketed root"),
-    "rk4": _Fn(rk4, "", "classical fourth-order Runge–Kutta, equal steps (calcdoc._reference.rk4, no calcdoc physics)"),
+    "rk4": _Fn(rk4, "", "classical fourth-order Runge–Kutta, equal steps (calcdoc.selftest.reference.rk4, no calcdoc physics)"),
     "sqrt": _Fn(math.sqrt, "", "math.sqrt"),
     "exp": _Fn(math.exp, "", "math.exp"),
     "expm1": _Fn(math.expm1, "", "math.expm1"),

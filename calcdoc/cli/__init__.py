@@ -4,17 +4,22 @@ internal error."""
 from __future__ import annotations
 
 import argparse
+import os
 import sys
-import traceback
-from pathlib import Path
 
-from . import __version__
-from .errors import CalcdocError, JobError, PhysicsError
+from .. import __version__, selftest
+from ..errors import EXIT_BAD_INPUT, EXIT_CHECK_FAILED, EXIT_INTERNAL, EXIT_OK, CalcdocError, JobError
+from ..job import load
+from . import tools
+from .batch import expand, run_batch
+from .runjob import output_groups, print_job_error, run_one
+from .verify import verify
 
-EXIT_OK, EXIT_CHECK_FAILED, EXIT_BAD_INPUT, EXIT_INTERNAL = 0, 1, 2, 3
+__all__ = ["EXIT_BAD_INPUT", "EXIT_CHECK_FAILED", "EXIT_INTERNAL", "EXIT_OK", "build_parser", "entry", "main"]
 
 
 def build_parser() -> argparse.ArgumentParser:
+    """The argument parser of every command."""
     p = argparse.ArgumentParser(
         prog="calcdoc",
         description="Turn a YAML job file into a checkable calculation package (PDF) and results (JSON) for "
@@ -74,6 +79,7 @@ def build_parser() -> argparse.ArgumentParser:
 
 
 def main(argv: list[str] | None = None) -> int:
+    """Run a command; returns its exit code."""
     parser = build_parser()
     args = parser.parse_args(argv)
     if args.command is None:
@@ -84,17 +90,13 @@ def main(argv: list[str] | None = None) -> int:
     if args.command == "verify":
         return _verify(args)
     if args.command in ("diff", "schema", "new"):
-        from . import _tools
-
-        return getattr(_tools, args.command)(args)
+        return getattr(tools, args.command)(args)
     if args.command == "selftest":
         return _selftest(args)
     return _run(args)
 
 
 def _selftest(args) -> int:
-    from . import selftest
-
     try:
         report = selftest.run_all()
         written = selftest.write(report, args.out, pdf=not args.no_pdf)
@@ -116,15 +118,13 @@ def _selftest(args) -> int:
 
 
 def _check(args) -> int:
-    from .jobfile import load
-
     worst = EXIT_OK
     for path in args.jobs:
         try:
             load(path)
             print(f"{path}: OK")
         except JobError as exc:
-            _print_job_error(exc)
+            print_job_error(exc)
             worst = EXIT_BAD_INPUT
         except Exception:  # an internal error: one line, never a traceback
             print(f"error: {path}: internal error in calcdoc {__version__}; please report it with the job file.",
@@ -134,8 +134,6 @@ def _check(args) -> int:
 
 
 def _verify(args) -> int:
-    from .verify import verify
-
     try:
         result = verify(args.report, args.job, rerun=args.rerun)
     except CalcdocError as exc:
@@ -145,17 +143,7 @@ def _verify(args) -> int:
     return EXIT_OK if result.ok else EXIT_CHECK_FAILED
 
 
-def _print_job_error(exc: JobError) -> None:
-    n = len(exc.problems)
-    for p in exc.problems:
-        print(f"error: {p}", file=sys.stderr)
-    if n > 1:
-        print(f"{n} problems found.", file=sys.stderr)
-
-
 def _run(args) -> int:
-    from ._batch import expand, run_batch
-
     jobs, problems = expand(args.jobs)
     for p in problems:
         print(f"error: {p}", file=sys.stderr)
@@ -165,151 +153,19 @@ def _run(args) -> int:
         print("error: --changes-since compares one job with its older revision; give one job file", file=sys.stderr)
         return EXIT_BAD_INPUT
     if len(jobs) == 1:
-        return max(_run_one(jobs[0], args), EXIT_BAD_INPUT if problems else EXIT_OK)
+        return max(run_one(jobs[0], args), EXIT_BAD_INPUT if problems else EXIT_OK)
     opts = {"out": args.out, "no_pdf": args.no_pdf, "debug": args.debug, "changes_since": None}
-    return max(run_batch(jobs, opts, quiet=args.quiet, workers=args.workers or None, groups=_output_groups(jobs)),
+    return max(run_batch(jobs, opts, quiet=args.quiet, workers=args.workers or None, groups=output_groups(jobs)),
                EXIT_BAD_INPUT if problems else EXIT_OK)
 
 
-def _output_groups(paths: list[str]) -> list[list[int]]:
-    """Jobs of a batch grouped by the output names their calc number and revision give: a group runs in
-    one worker, in file order, and only its first job that writes may write (see ``_run_one``), so that
-    no job of the batch overwrites another's report. Only the title block is read here (safe YAML, with
-    its limits; no validation): a job that cannot be read is a group of its own and reports itself."""
-    from pathlib import Path
-
-    from ._yaml import decode, load
-    from .report.render import safe_stem
-
-    groups: dict[str, list[int]] = {}
-    for k, path in enumerate(paths):
-        stem = f"\0{k}"
-        try:
-            calc = load(decode(Path(path).read_bytes(), path), path).value.get("calc")
-            if calc is not None and calc.kind == "map":
-                number, revision = calc.value.get("number"), calc.value.get("revision")
-                if number is not None and revision is not None:
-                    stem = safe_stem(str(number.value), str(revision.value))
-        except (JobError, OSError):
-            pass
-        groups.setdefault(stem, []).append(k)
-    return list(groups.values())
-
-
-def _run_one(path: str, args, info: dict | None = None) -> int:
-    from .jobfile import load
-
-    try:
-        job = load(path)
-        from .engine import run
-
-        results = run(job)
-        if getattr(args, "changes_since", None):
-            from .revision import with_changes
-
-            old = load(args.changes_since)
-            results = with_changes(results, old, run(old))
-        from .output import output_paths, write
-
-        taken = getattr(args, "taken", None)       # output names written by earlier jobs of this batch
-        if taken is not None:
-            stem = output_paths(results, args.out)[0].stem
-            if stem in taken:
-                raise CalcdocError(f"calc {job.calc.number} rev {job.calc.revision} is also {taken[stem]}, whose "
-                                   "report this batch has written; give each job its own calc number or revision "
-                                   "(nothing written for this job)")
-            taken[stem] = path
-        written = write(results, args.out, pdf=not args.no_pdf)
-    except JobError as exc:
-        _print_job_error(exc)
-        return EXIT_BAD_INPUT
-    except PhysicsError as exc:
-        print(f"error: {path}: {exc}", file=sys.stderr)
-        return EXIT_BAD_INPUT
-    except CalcdocError as exc:
-        print(f"error: {path}: {exc}", file=sys.stderr)
-        return EXIT_BAD_INPUT
-    except KeyboardInterrupt:
-        print("interrupted; nothing was written for the job in progress", file=sys.stderr)
-        return 130
-    except Exception:  # an internal error: one line for the user, the traceback only with --debug
-        where = ""
-        if args.debug:
-            log = Path(args.out) / "calcdoc-debug.log"
-            try:
-                log.parent.mkdir(parents=True, exist_ok=True)
-                log.write_text(traceback.format_exc(), encoding="utf-8")
-                where = f" The traceback is in {log}."
-            except OSError:
-                where = ""
-        print(f"error: {path}: internal error in calcdoc {__version__}; please report it with the job file."
-              f"{where or ' Run again with --debug to write the traceback to a log file.'}", file=sys.stderr)
-        return EXIT_INTERNAL
-    if info is not None:
-        info.update(number=results.job.calc.number, revision=results.job.calc.revision, checks=len(results.checks),
-                    failed=sum(1 for c in results.checks if c.status != "pass"), written=[str(p) for p in written])
-    if not args.quiet:
-        _summary(results, written)
-    return EXIT_OK if results.passed else EXIT_CHECK_FAILED
-
-
-def _summary(results, written) -> None:
-    from .report.format import _num
-    from .units import display
-
-    system = results.job.units
-    t = results.job.calc
-
-    def show(value, unit, sig=5, difference=False):
-        v, u = display(value, unit, system, difference=difference)
-        text = _num(v, sig) if v == 0 or 1e-3 <= abs(v) < 1e7 else f"{v:.{sig - 1}e}"   # no markup on a terminal
-        return f"{text} {u}".replace("\u2009", " ").strip()
-
-    print(f"{t.number} rev {t.revision}: {t.title}")
-    print(f"  gas: {results.gas.describe()}")
-    for rec in results.states:
-        s = rec.state
-        print(f"  state {rec.label:>3}: P = {show(s.P, 'Pa'):>14}   T = {show(s.T, 'K'):>10}   "
-              f"v = {show(s.v, 'm**3/kg', 4)}   {s.phase}")
-    for leg in results.legs:
-        qd = leg.quantities
-        if "W_by_gas" in qd:
-            print(f"  leg {leg.i}→{leg.i + 1} {leg.name} ({leg.process}): W by gas = {show(qd['W_by_gas'].value, 'J')}, "
-                  f"Q to gas = {show(qd['Q_to_gas'].value, 'J')}")
-        elif "work_in" in qd:
-            print(_flow_leg_line(leg, show))
-        else:
-            print(f"  leg {leg.i}→{leg.i + 1} {leg.name} ({leg.process})")
-    for c in results.checks:
-        print(f"  check {c.name} at {c.where}: {c.status.upper()}")
-    for w in results.warnings:
-        print(f"  warning: {w}")
-    for p in written:
-        print(f"  wrote {p}")
-
-
-def _flow_leg_line(leg, show) -> str:
-    """One line of a steady-flow leg: end state, head, efficiencies, power and duty, in the job's units."""
-    qd = leg.quantities
-    parts = [f"  leg {leg.i}→{leg.i + 1} {leg.name} ({leg.process}): P2 = {show(leg.end.P, 'Pa')}, "
-             f"T2 = {show(leg.end.T, 'K')}"]
-    for key, label in (("head", "Hp"), ("eta_p", "ηp"), ("eta_s", "ηs"), ("eta_p_schultz", "ηp Schultz"),
-                       ("power", "P gas"), ("shaft_power", "P shaft"), ("duty", "duty"), ("dT", "ΔT")):
-        if key in qd and not (key in ("power", "duty") and qd[key].value == 0.0):
-            c = qd[key]
-            unit = {"duty": "W|heat", "head": "J/kg|head"}.get(key, c.unit)
-            parts.append(f"{label} = {show(c.value, unit, difference=(key == 'dT'))}")
-    return ", ".join(parts)
-
-
 def entry() -> None:
+    """The console script: run and exit with the command's code."""
     try:
         code = main()
         sys.stdout.flush()
     except BrokenPipeError:
         # the reader of our output went away (calcdoc schema | head): not an error of ours
-        import os
-
         os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
         code = EXIT_OK
     sys.exit(code)

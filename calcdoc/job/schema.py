@@ -5,6 +5,10 @@ the validation cannot drift apart; the validators stay the authority (units, ran
 """
 from __future__ import annotations
 
+from . import jobfile, sweep
+from .limits import LIMIT_KEYS
+from .quantities import ALIASES, QUANTITIES
+
 __all__ = ["job_schema"]
 
 SCHEMA_ID = "https://calcdoc.invalid/schema/job-1.json"
@@ -28,13 +32,11 @@ def _obj(keys, props: dict, required=(), desc: str = "") -> dict:
 
 
 def job_schema() -> dict:
-    from . import checks, jobfile, sweep
-
     text = {"type": "string"}
     names = {"type": ["string", "number"]}
     at = {"description": "leg names or state labels; default: everywhere the quantity exists",
           "oneOf": [names, {"type": "array", "items": names, "minItems": 1}]}
-    quantities = sorted(set(checks.QUANTITIES) | set(checks.ALIASES))
+    quantities = sorted(set(QUANTITIES) | set(ALIASES))
     target_props = {k: _qty(f"end {k.replace('_', ' ')}") for k in jobfile.CLOSED_TARGETS + jobfile.FLOW_TARGETS}
     leg_props = {
         "name": text, "note": text,
@@ -74,7 +76,7 @@ def job_schema() -> dict:
                       ("pressure", "temperature"), "state 1"),
         "legs": legs_of(jobfile._FLOW_LEG_KEYS, jobfile.CLOSED_PROCESSES + jobfile.FLOW_PROCESSES),
         "limits": {"type": "array", "items": {
-            **_obj(checks.LIMIT_KEYS, {"name": text, "quantity": {"enum": quantities}, "at": at,
+            **_obj(LIMIT_KEYS, {"name": text, "quantity": {"enum": quantities}, "at": at,
                                        "max": _qty("upper limit"), "min": _qty("lower limit"),
                                        "margin": _qty("required margin, absolute or percent ('10 %')"),
                                        "basis": text}, ("quantity", "basis")),

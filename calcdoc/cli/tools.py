@@ -6,17 +6,22 @@ import json
 import sys
 from pathlib import Path
 
-from .errors import CalcdocError, JobError, PhysicsError
+from ..engine import run
+from ..engine.revision import compare
+from ..errors import EXIT_BAD_INPUT, EXIT_OK, CalcdocError, JobError, PhysicsError
+from ..job import load
+from ..job.revision import load_revision
+from ..job.schema import job_schema
+from ..job.starter import starter
+from ..report.output import write_atomic
+from ..report.terminal import diff_text
+from .runjob import print_job_error
 
-EXIT_OK, EXIT_BAD_INPUT = 0, 2
+__all__ = ["diff", "new", "schema"]
 
 
 def diff(args) -> int:
-    from .cli import _print_job_error
-    from .engine import run
-    from .jobfile import load
-    from .revision import compare, diff_text, load_revision
-
+    """``calcdoc diff``: inputs changed and results moved between two revisions."""
     if (args.new is None) == (args.against is None):
         print("error: give OLD.yaml NEW.yaml, or JOB.yaml --against REV", file=sys.stderr)
         return EXIT_BAD_INPUT
@@ -27,7 +32,7 @@ def diff(args) -> int:
             old, new = load(args.old), load(args.new)
         d = compare(old, new, run(old), run(new))
     except JobError as exc:
-        _print_job_error(exc)
+        print_job_error(exc)
         return EXIT_BAD_INPUT
     except (PhysicsError, CalcdocError) as exc:
         print(f"error: {exc}", file=sys.stderr)
@@ -37,16 +42,13 @@ def diff(args) -> int:
 
 
 def schema(args) -> int:
-    from .schema import job_schema
-
+    """``calcdoc schema``: the JSON Schema of the job file."""
     print(json.dumps(job_schema(), indent=2, ensure_ascii=False))
     return EXIT_OK
 
 
 def new(args) -> int:
-    from .output import write_atomic
-    from .starter import starter
-
+    """``calcdoc new``: a commented starter job."""
     text = starter(args.system)
     if not args.path:
         print(text, end="")

@@ -1,4 +1,4 @@
-"""Safe YAML loading that keeps the line and column of every key and value.
+"""Safe YAML reading that keeps the line and column of every key and value (the only place PyYAML is used).
 
 Only plain data is built (no object construction, PyYAML's safe resolver); the file size, the
 nesting depth and the number of nodes after alias expansion are bounded, so a crafted file (an
@@ -6,10 +6,11 @@ nesting depth and the number of nodes after alias expansion are bounded, so a cr
 """
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+import datetime as _dt
+from dataclasses import dataclass
 from typing import Any
 
-from .errors import JobError, Problem
+from ..errors import JobError, Problem
 
 MAX_BYTES = 1_000_000
 MAX_NODES = 100_000
@@ -33,7 +34,9 @@ class Node:
     key_col: int = 0
     kind: str = "scalar"   # scalar, map or seq
     tag: str = ""
-    extra: dict = field(default_factory=dict)
+    span: tuple[int, int] = (0, 0)   # character offsets of the value in the text
+    key_start: int = -1              # character offset of the key that introduced it
+    flow: bool = False               # written in flow style ({...} or [...])
 
     @property
     def where(self) -> tuple[int, int]:
@@ -190,12 +193,13 @@ class _Builder:
                 self.fail(node, path, f"cannot read the value '{node.value}'", "write a plain number, text or date")
             if isinstance(value, float) and value != value:
                 value = node.value  # '.nan' stays text so that validation names it
-            return Node(value, line, col, path, tag=node.tag)
+            return Node(value, line, col, path, tag=node.tag, span=(node.start_mark.index, node.end_mark.index))
         self.active.add(id(node))
         try:
             if isinstance(node, yaml.SequenceNode):
                 items = [self.build(child, f"{path}[{i}]", depth + 1) for i, child in enumerate(node.value)]
-                return Node(items, line, col, path, kind="seq")
+                return Node(items, line, col, path, kind="seq", span=(node.start_mark.index, node.end_mark.index),
+                            flow=bool(node.flow_style))
             out: dict[str, Node] = {}
             for key_node, value_node in node.value:
                 if not isinstance(key_node, yaml.ScalarNode):
@@ -210,7 +214,58 @@ class _Builder:
                               "give each key once")
                 child = self.build(value_node, sub, depth + 1)
                 child.key_line, child.key_col = key_node.start_mark.line + 1, key_node.start_mark.column + 1
+                child.key_start = key_node.start_mark.index
                 out[key] = child
-            return Node(out, line, col, path, kind="map")
+            return Node(out, line, col, path, kind="map", span=(node.start_mark.index, node.end_mark.index),
+                        flow=bool(node.flow_style))
         finally:
             self.active.discard(id(node))
+
+
+def _scalar(node: Node) -> str:
+    v = node.value
+    if isinstance(v, (_dt.date, _dt.datetime)):
+        return v.isoformat()
+    if v is None:
+        return "null"
+    if isinstance(v, bool):
+        return str(v).lower()
+    return str(v)
+
+
+def leaves(tree: Node) -> tuple[tuple[str, str, int], ...]:
+    """Every scalar of a job file: (path, value as entered, line); list items are named by their ``name`` or
+    ``revision`` where they have one, so that inserting a leg does not renumber the rest."""
+    out: list[tuple[str, str, int]] = []
+
+    def walk(node: Node, path: str) -> None:
+        if node.kind == "map":
+            for k, child in node.value.items():
+                walk(child, f"{path}.{k}" if path else k)
+        elif node.kind == "seq":
+            seen: set[str] = set()
+            for i, child in enumerate(node.value):
+                tag = str(i)
+                if child.kind == "map":
+                    for key in ("name", "revision"):
+                        if key in child.value and child.value[key].kind == "scalar":
+                            tag = _scalar(child.value[key])
+                            break
+                if tag in seen:
+                    tag = str(i)
+                seen.add(tag)
+                walk(child, f"{path}[{tag}]")
+            if not node.value:
+                out.append((path, "[]", node.line))
+        else:
+            out.append((path, _scalar(node), node.where[0]))
+
+    walk(tree, "")
+    return tuple(out)
+
+
+def dump(data: Any, **options: Any) -> str:
+    """Plain data written as YAML text (for job files made by the program, e.g. verification cases)."""
+    import yaml
+
+    return yaml.safe_dump(data, sort_keys=False, allow_unicode=True, **options)

@@ -24,7 +24,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from .errors import PhysicsError
+from ..errors import PhysicsError
 from .gas import _PHASES, RealGas, State
 
 __all__ = ["Eos", "Point", "TwoPhaseError", "polytropic_path", "solve_T"]

@@ -9,7 +9,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from .errors import PhysicsError
+from ..errors import PhysicsError
 
 __all__ = ["R_U", "State", "Gas", "IdealGas", "RealGas"]
 

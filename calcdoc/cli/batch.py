@@ -2,12 +2,15 @@
 (its errors are its own), a progress bar on a terminal, and a one-line-per-job summary table."""
 from __future__ import annotations
 
+import argparse
 import io
 import os
 import sys
 from contextlib import redirect_stderr, redirect_stdout
 from dataclasses import dataclass, field
 from pathlib import Path
+
+from .runjob import run_one
 
 __all__ = ["Outcome", "expand", "run_batch"]
 
@@ -40,16 +43,12 @@ def expand(paths: list[str]) -> tuple[list[str], list[str]]:
 
 def _one(path: str, opts: dict, taken: dict | None = None) -> Outcome:
     """Run one job in this process, capturing what it prints (the worker of the pool)."""
-    import argparse
-
-    from .cli import _run_one
-
     args = argparse.Namespace(**opts, quiet=True, taken=taken)
     info: dict = {}
     err, out = io.StringIO(), io.StringIO()
     try:
         with redirect_stderr(err), redirect_stdout(out):
-            code = _run_one(path, args, info)
+            code = run_one(path, args, info)
     except BaseException as exc:  # isolation: nothing a job does may stop the batch
         return Outcome(path, 3, f"error: {path}: internal error ({type(exc).__name__})\n")
     return Outcome(path, code, err.getvalue(), info)

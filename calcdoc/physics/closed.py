@@ -10,7 +10,7 @@ import math
 from dataclasses import dataclass
 
 from .calc import Calc, Term
-from .errors import PhysicsError
+from ..errors import PhysicsError
 from .gas import Gas, State
 
 __all__ = ["LegResult", "Target", "closed_leg", "n_from_states", "polytropic_work"]

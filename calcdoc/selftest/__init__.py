@@ -5,7 +5,7 @@ calcdoc (a job fragment through load → run → results JSON, or a direct call)
 value with its expected value and tolerance, and writes a verification report (JSON and PDF).
 
 Expected values come from the case file: a published number, or a formula or library call that
-:mod:`calcdoc._reference` evaluates with ``math``, CoolProp and SciPy called directly, never through
+:mod:`calcdoc.selftest.reference` evaluates with ``math``, CoolProp and SciPy called directly, never through
 calcdoc's own physics. The same cases drive ``tests/test_verification.py``.
 """
 from __future__ import annotations
@@ -18,8 +18,19 @@ import re
 from dataclasses import dataclass, field
 from typing import Any
 
-from . import __version__, _reference
-from ._cases import SOURCE_KINDS, Case, Expected, TopicFile, load_all
+from pathlib import Path
+
+from .. import __version__
+from ..engine import run
+from ..engine.results import to_json as results_json
+from ..errors import CalcdocError
+from ..job import CLOSED_PROCESSES, FLOW_PROCESSES, loads
+from ..job.source import dump as dump_yaml
+from ..report.methods import METHODS
+from ..report.output import write_atomic
+from ..report.verification import render_pdf
+from . import reference as _reference
+from .cases import SOURCE_KINDS, Case, Expected, TopicFile, case_files, load_all
 
 __all__ = ["CaseResult", "Outcome", "Report", "environment", "run_all", "run_case", "to_json", "dumps", "write"]
 
@@ -97,12 +108,10 @@ def environment() -> dict[str, str]:
 
 # -- running one case -------------------------------------------------------------------------------
 def _job_text(case: Case) -> str:
-    import yaml
-
     job = {"calcdoc": 1, "calc": {"number": f"VERIFY-{case.id}", "title": case.title, "revision": "0",
                                   "date": "2026-01-01"}}
     job.update(case.job or {})
-    return yaml.safe_dump(job, sort_keys=False, allow_unicode=True)
+    return dump_yaml(job)
 
 
 def _resolve_function(dotted: str):
@@ -124,14 +133,10 @@ def _resolve_function(dotted: str):
 def _compute(case: Case) -> tuple[Any, tuple[str, ...], tuple[tuple[str, str, str], ...]]:
     """What calcdoc computes for the case: the results JSON of its job, or the values of its calls."""
     if case.job is not None:
-        from .engine import run
-        from .jobfile import loads
-        from .results import to_json
-
         job = loads(_job_text(case), f"{case.id}.yaml")
         res = run(job)
         procs = tuple((job.system, leg.process, job.gas.model) for leg in job.legs)
-        return to_json(res), tuple(res.methods_used()), procs
+        return results_json(res), tuple(res.methods_used()), procs
     out = {}
     for name, spec in case.calls:
         fn = _resolve_function(spec["function"])
@@ -234,9 +239,6 @@ def run_all(topics: list[TopicFile] | None = None) -> Report:
 # -- coverage: what was and was not verified ------------------------------------------------------
 def coverage(report: Report) -> dict[str, Any]:
     """Catalogue methods and process kinds with the cases that exercised them, and those with none."""
-    from .jobfile import CLOSED_PROCESSES, FLOW_PROCESSES
-    from .methods import METHODS
-
     by_method: dict[str, list[str]] = {m: [] for m in METHODS if m != "input"}
     by_process: dict[tuple[str, str], dict[str, list[str]]] = {}
     for system, procs in (("closed", CLOSED_PROCESSES), ("flow", FLOW_PROCESSES)):
@@ -320,11 +322,6 @@ def dumps(report: Report) -> str:
 
 def write(report: Report, out_dir, pdf: bool = True) -> list:
     """Write ``calcdoc-selftest.json`` (and ``.pdf``) into out_dir, atomically."""
-    from pathlib import Path
-
-    from .errors import CalcdocError
-    from .output import write_atomic
-
     out = Path(out_dir)
     try:
         out.mkdir(parents=True, exist_ok=True)
@@ -333,9 +330,7 @@ def write(report: Report, out_dir, pdf: bool = True) -> list:
     text = dumps(report)
     pdf_bytes = None
     if pdf:
-        from .report.verification import render_pdf
-
-        pdf_bytes = render_pdf(report, text)
+        pdf_bytes = render_pdf(text, case_files())
     write_atomic(out / f"{STEM}.json", text.encode("utf-8"))
     written = [out / f"{STEM}.json"]
     if pdf_bytes is not None:

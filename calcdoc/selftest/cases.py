@@ -11,9 +11,10 @@ from dataclasses import dataclass, field
 from importlib import resources
 from typing import Any
 
-from . import _reference
-from ._yaml import Node, load as _load_yaml
-from .errors import CalcdocError, JobError, Problem
+from ..errors import CalcdocError, JobError, Problem
+from ..job.source import Node, load as _load_yaml
+from ..report.methods import METHODS
+from . import reference as _reference
 
 __all__ = ["SOURCE_KINDS", "Case", "CaseFileError", "Expected", "Source", "TopicFile", "load_all", "load_text"]
 
@@ -50,7 +51,7 @@ class Expected:
     quantity: str                 # path into the computed data: legs[0].W_by_gas, states[1].T, result.si
     unit: str                     # SI unit of the value (pint spelling), "" when dimensionless or text
     value: Any = None             # a literal (number, text, boolean), or None
-    formula: str | None = None    # an expression over the given values (see calcdoc._reference)
+    formula: str | None = None    # an expression over the given values (see calcdoc.selftest.reference)
     tol_abs: float = 0.0
     tol_rel: float = 0.0
     why: str = ""                 # why this tolerance
@@ -198,8 +199,6 @@ class _Reader:
         if "covers" in m and m["covers"].kind != "seq":
             self.add(m["covers"], "expected a list of method ids", "write for example [atm.std, gauge]")
         if covers:
-            from .methods import METHODS
-
             for c in covers:
                 if c not in METHODS:
                     self.add(m["covers"], f"'{c}' is not a method id of calcdoc.methods", "use an id of the catalogue")

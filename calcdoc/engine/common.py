@@ -1,0 +1,135 @@
+"""What closed and steady-flow jobs share: the gas model, the site atmosphere and gauge inputs as calcs,
+the basis of the results, the saturation dome for the charts, and the software versions."""
+from __future__ import annotations
+
+from functools import lru_cache
+from importlib import metadata
+
+from .. import __version__
+from ..errors import JobError, PhysicsError
+from ..job.model import Job
+from ..physics.calc import Calc, Term
+from ..physics.fluids import fluid_names_hint
+from ..physics.gas import R_U, Gas, IdealGas, RealGas
+from .diagnose import fluid_problems
+
+__all__ = ["job_basis", "make_gas", "saturation_near", "shared_real_gas", "site_calcs", "software_versions"]
+
+def software_versions() -> dict[str, str]:
+    out = {"calcdoc": __version__}
+    for dist in ("CoolProp", "pint", "PyYAML", "Jinja2", "matplotlib", "weasyprint", "numpy"):
+        try:
+            out[dist] = metadata.version(dist)
+        except metadata.PackageNotFoundError:
+            out[dist] = "not installed"
+    return out
+
+
+def make_gas(job: Job) -> tuple[Gas, list[Calc]]:
+    """The gas model of a job, and the calcs that set its constants (ideal gas)."""
+    spec = job.gas
+    try:
+        if spec.model == "real":
+            gas = shared_real_gas(spec.fluid, spec.mixture)
+            gas.flashes = 0          # the flash count is per run
+            return gas, []
+        return _ideal_gas(job)
+    except PhysicsError as exc:
+        problems = fluid_problems(job)
+        if problems:
+            raise JobError(problems) from None
+        path = "gas.fluid" if spec.fluid else "gas.mixture"
+        raise JobError([job.problem(path, str(exc), _fluid_hint(spec))]) from None
+
+
+@lru_cache(maxsize=8)
+def shared_real_gas(fluid, mixture) -> RealGas:
+    """One real-gas object per fluid and process, reused by every job and sweep point that needs it
+    (its CoolProp state is set afresh by every flash, so reuse does not change results)."""
+    return RealGas(fluid, mixture)
+
+
+def _fluid_hint(spec) -> str:
+    names = [spec.fluid] if spec.fluid else [c for c, _ in spec.mixture]
+    return fluid_names_hint(names)
+
+
+def _ideal_gas(job: Job) -> tuple[Gas, list[Calc]]:
+    spec = job.gas
+    calcs: list[Calc] = []
+    name = spec.fluid or (" + ".join(f"{x:.4g} {c}" for c, x in spec.mixture) if spec.mixture else "gas")
+    fluid = RealGas(spec.fluid, spec.mixture) if (spec.fluid or spec.mixture) else None
+    if spec.molar_mass is not None:
+        M = spec.molar_mass.si
+        calcs.append(Calc("M", M, "kg/mol", "{M}", "input", {"M": Term("M", M, "kg/mol")}))
+    elif spec.R is not None:
+        M = R_U / spec.R.si
+        calcs.append(Calc("M", M, "kg/mol", "{Ru} / {R}", "ideal.R",
+                          {"Ru": Term("R_u", R_U, "J/(mol*K)"), "R": Term("R", spec.R.si, "J/(kg*K)")}))
+    else:
+        M = fluid.M
+        calcs.append(Calc("M", M, "kg/mol", "M(fluid)", "eos.real"))
+    R = R_U / M
+    calcs.append(Calc("R", R, "J/(kg*K)", "{Ru} / {M}", "ideal.R",
+                      {"Ru": Term("R_u", R_U, "J/(mol*K)"), "M": Term("M", M, "kg/mol")}))
+    if spec.k is not None:
+        k = spec.k.si
+        calcs.append(Calc("k", k, "", "{k}", "input", {"k": Term("k", k, "")}))
+    else:
+        T1 = job.start.temperature.si
+        cp0 = fluid.cp0_at(T1)
+        k = cp0 / (cp0 - R)
+        calcs.append(Calc("k", k, "", "{cp0} / ({cp0} − {R})", "eos.real",
+                          {"cp0": Term("c_p0", cp0, "J/(kg*K)"), "R": Term("R", R, "J/(kg*K)")},
+                          note="ideal-gas heat capacity of the fluid at the start temperature"))
+    gas = IdealGas(name, k, M)
+    if fluid is not None:
+        gas.eos_refs = fluid.eos_refs
+    calcs.append(Calc("c_p", gas.cp, "J/(kg*K)", "{k}·{R}/({k} − 1)", "ideal.cp",
+                      {"k": Term("k", k, ""), "R": Term("R", R, "J/(kg*K)")}))
+    calcs.append(Calc("c_v", gas.cv, "J/(kg*K)", "{R}/({k} − 1)", "ideal.cp",
+                      {"k": Term("k", k, ""), "R": Term("R", R, "J/(kg*K)")}))
+    return gas, calcs
+
+
+def site_calcs(job: Job) -> list[Calc]:
+    """The site atmosphere and every gauge input turned absolute, as calcs a checker can follow."""
+    out: list[Calc] = []
+    site = job.site
+    if site.P_atm is None:
+        return out
+    if site.elevation is not None:
+        out.append(Calc("P_atm", site.P_atm, "Pa", "P_0·(T_0/(T_0 + L·H))^(g_0·M_0/(R*·L)), H = r_0·{z}/(r_0 + {z})",
+                        "atm.std", {"z": Term("z", site.elevation.si, "m")},
+                        note="U.S. Standard Atmosphere 1976, troposphere: P_0 = 101.325 kPa, T_0 = 288.15 K, "
+                             "L = −0.0065 K/m, r_0 = 6 356 766 m"))
+    else:
+        out.append(Calc("P_atm", site.P_atm, "Pa", "{P}", "input", {"P": Term("P_atm", site.P_atm, "Pa")}))
+    for inp in job.inputs:
+        if inp.gauge:
+            out.append(Calc(f"P ({inp.path})", inp.si, "Pa", "{Pg} + {Patm}", "gauge",
+                            {"Pg": Term("P_g", inp.si - site.P_atm, "Pa"), "Patm": Term("P_atm", site.P_atm, "Pa")},
+                            note=f"entered as {inp.entered}"))
+    return out
+
+
+def saturation_near(gas: Gas, legs) -> tuple | None:
+    """The saturation dome for the charts when a path comes within 30 % of the critical temperature."""
+    if not isinstance(gas, RealGas) or not gas.pure:
+        return None
+    if any(st.T < 1.3 * gas.Tc for leg in legs for st in leg.path):
+        curve = gas.saturation_curve()
+        return tuple(curve) if curve else None
+    return None
+
+
+def job_basis(job: Job, gas: Gas) -> dict:
+    """The basis of the results: the gas model and the site atmosphere (for the JSON and the report)."""
+    site = job.site
+    return {
+        "gas": {"model": gas.model, "description": gas.describe(), "molar_mass": {"value": gas.M, "unit": "kg/mol"},
+                "eos_references": list(gas.eos_refs),
+                **({"k": gas.k} if isinstance(gas, IdealGas) else {})},
+        "site": {"atmosphere": None if site.P_atm is None else {"value": site.P_atm, "unit": "Pa"},
+                 "source": site.source},
+    }

@@ -1,0 +1,242 @@
+"""The job model: one typed, frozen description of a job file, read once (see :mod:`calcdoc.job.load`).
+
+Every quantity is already SI (absolute pressure, absolute temperature) with the text the user wrote and
+the line and column it stands on, so later layers never see YAML and can still point into the file.
+
+Frozen dataclasses rather than pydantic: the validation that gives file:line messages in the trade's words
+is ours (:mod:`calcdoc.job.reader`), the model only holds its result; dataclasses add no dependency and no
+import time, and ``dataclasses.fields`` is enough to generate the JSON Schema alongside the key tables.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+from ..errors import Problem
+from .quantities import Quantity
+
+__all__ = ["Drop", "FollowSpec", "GasSpec", "Input", "Job", "LegOptions", "LegSpec", "LimitSpec", "Site",
+           "Staging", "StartSpec", "SweepSpec", "TitleBlock"]
+
+
+@dataclass(frozen=True)
+class Input:
+    """A quantity read from the job file: SI value, as entered, and where it was written."""
+
+    si: float
+    unit: str
+    entered: str
+    path: str
+    line: int
+    col: int
+    gauge: bool = False
+    percent: bool = False
+    kind: str = ""          # the kind of quantity (units.DIMENSIONS key) where known
+
+    @property
+    def difference(self) -> bool:
+        """A difference (pressure drop, temperature difference): shown without gauge/absolute or offset."""
+        return self.kind in ("pressure_difference", "temperature_difference")
+
+    @property
+    def unmarked_pressure(self) -> bool:
+        """A pressure in psi or kgf/cm2 written without an a/g marker: taken as absolute, though in much
+        practice these units are read as gauge (plain bar, kPa and MPa are read as absolute)."""
+        parts = self.entered.split(maxsplit=1)
+        return self.kind == "pressure" and len(parts) == 2 and parts[1].strip() in ("psi", "kgf/cm2", "kg/cm2")
+
+
+@dataclass(frozen=True)
+class TitleBlock:
+    """The calc's title block and revision history."""
+
+    number: str
+    title: str
+    project: str
+    revision: str
+    date: str
+    client: str = ""
+    purpose: str = ""
+    prepared_by: str = ""
+    checked_by: str = ""
+    approved_by: str = ""
+    drawings: tuple[str, ...] = ()
+    history: tuple[tuple[str, str, str], ...] = ()   # (revision, date, description)
+
+
+@dataclass(frozen=True)
+class Site:
+    """The site atmosphere: absolute pressure [Pa] and how it was found."""
+
+    P_atm: float | None          # absolute atmospheric pressure [Pa], None when not given
+    source: str                  # "given", "standard atmosphere at elevation" or "not given"
+    atmosphere: Input | None = None
+    elevation: Input | None = None
+
+
+@dataclass(frozen=True)
+class GasSpec:
+    """The gas: a fluid or a mixture, with the real (CoolProp) or the ideal-gas model."""
+
+    model: str                                  # "real" or "ideal"
+    fluid: str | None = None
+    mixture: tuple[tuple[str, float], ...] = ()  # (component, mole fraction)
+    k: Input | None = None
+    molar_mass: Input | None = None
+    R: Input | None = None
+
+
+@dataclass(frozen=True)
+class StartSpec:
+    """State 1 and the amount of gas: a mass or volume (closed) or a flow (steady flow)."""
+
+    pressure: Input
+    temperature: Input
+    volume: Input | None = None
+    mass: Input | None = None
+    mass_flow: Input | None = None
+    molar_flow: Input | None = None
+    volume_flow: Input | None = None
+    standard_volume_flow: Input | None = None
+    standard_pressure: Input | None = None
+    standard_temperature: Input | None = None
+
+
+@dataclass(frozen=True)
+class Drop:
+    """A pressure drop: a fraction of the inlet pressure, or an absolute difference [Pa]."""
+
+    fraction: float | None = None
+    absolute: float | None = None
+    inp: Input | None = None
+
+    def outlet(self, P_in: float) -> float:
+        """The outlet pressure for an inlet pressure P_in [Pa]."""
+        return P_in * (1.0 - self.fraction) if self.fraction is not None else P_in - (self.absolute or 0.0)
+
+
+@dataclass(frozen=True)
+class Staging:
+    """A compressor leg split into stages with intercoolers."""
+
+    stages: int | None                 # a fixed number of stages, or
+    T_max: Input | None                # the discharge-temperature limit for the fewest-stages search
+    max_stages: int
+    T_cool: Input                      # intercooler outlet temperature
+    drop: Drop
+    path: str = ""                     # key path of the staging block
+
+    @property
+    def most_stages(self) -> int:
+        """The most stages this block can give."""
+        return self.stages if self.stages is not None else self.max_stages
+
+
+@dataclass(frozen=True)
+class LegOptions:
+    """The steady-flow options of a leg: efficiencies, pressure drop, staging."""
+
+    eta_p: Input | None = None
+    eta_s: Input | None = None
+    eta_m: Input | None = None
+    drop: Drop = Drop()
+    staging: Staging | None = None
+
+
+@dataclass(frozen=True)
+class LegSpec:
+    """One leg as the job file gives it."""
+
+    name: str
+    process: str
+    path: str                       # "legs[0]"
+    line: int
+    col: int
+    end: dict[str, Input]           # target name → value (pressure, temperature, volume, ratios)
+    n: Input | None = None
+    options: LegOptions = LegOptions()
+    note: str = ""
+
+
+@dataclass(frozen=True)
+class LimitSpec:
+    """A design limit: a quantity, where it applies, its bounds, a required margin and its basis."""
+
+    name: str
+    quantity: Quantity
+    at: tuple[str, ...]              # leg names or state labels; () = everywhere it exists
+    max: Input | None
+    min: Input | None
+    margin: Input | None             # absolute (SI of the quantity) or percent (si = fraction)
+    basis: str
+    path: str
+    line: int
+    col: int
+    at_where: tuple[int, int] = (0, 0)
+
+
+@dataclass(frozen=True)
+class FollowSpec:
+    """A result a sweep follows: a quantity at named places (none: everywhere it exists)."""
+
+    quantity: Quantity
+    at: tuple[str, ...]
+    where: tuple[int, int]
+    path: str
+
+
+@dataclass(frozen=True)
+class SweepSpec:
+    """One input varied over a list of values; each point is the job file with that value in its place."""
+
+    input: str                                  # the path as written
+    value_path: str                             # key path of the varied value (legs[1].end.pressure)
+    points: tuple[str, ...]                     # YAML text of each value, written in its place
+    entered: tuple[str, ...]                    # each point as entered
+    sources: tuple[tuple[str, int, int], ...]   # (key path, line, col) each point came from
+    follow: tuple[FollowSpec, ...]
+    span: tuple[int, int]                       # character span of the value in the job text
+    cut: tuple[int, int] | None                 # span of the whole sweep block (left out of each point's job)
+
+
+@dataclass(frozen=True)
+class Job:
+    """A validated job: everything the engine needs, each input with its place in the file."""
+
+    name: str                       # the file name as given by the user (for messages)
+    data: bytes                     # the job file, byte for byte
+    sha256: str
+    calc: TitleBlock
+    units: str                      # report unit system: "SI" or "US"
+    site: Site
+    gas: GasSpec
+    system: str                     # "closed" or "flow"
+    start: StartSpec
+    legs: tuple[LegSpec, ...]
+    limits: tuple[LimitSpec, ...] = ()
+    assumptions: tuple[str, ...] = ()
+    inputs: tuple[Input, ...] = ()  # every quantity in file order, for the report
+    where: dict[str, tuple[int, int]] = field(default_factory=dict)
+    leaves: tuple[tuple[str, str, int], ...] = ()   # every scalar of the file: (path, as entered, line)
+    sweep: SweepSpec | None = None
+
+    @property
+    def text(self) -> str:
+        """The job file's text."""
+        return self.data.decode("utf-8").lstrip("\ufeff")
+
+    def locate(self, path: str) -> tuple[int, int]:
+        """Line and column of a key path, or of its nearest parent that is known."""
+        while path:
+            if path in self.where:
+                return self.where[path]
+            path = path.rsplit(".", 1)[0] if "." in path else (path.rsplit("[", 1)[0] if "[" in path else "")
+        return (0, 0)
+
+    def problem(self, path: str, found: str, valid: str = "") -> Problem:
+        """A problem at a key path of this job file."""
+        line, col = self.locate(path)
+        return Problem(self.name, line, col, path, found, valid)
+
+    def problem_at(self, inp: Input, found: str, valid: str = "") -> Problem:
+        """A problem at an input's own line and column."""
+        return Problem(self.name, inp.line, inp.col, inp.path, found, valid)

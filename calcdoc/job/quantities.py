@@ -1,0 +1,154 @@
+"""The quantities a limit, a sweep or a solve can name: one table, shared by all three.
+
+A quantity is a property of a state, a quantity of a leg, a ratio of a leg or a total over a train, with
+the kind of its unit (a key of :data:`calcdoc.units.DIMENSIONS`) and the systems it exists in.
+"""
+from __future__ import annotations
+
+import difflib
+from dataclasses import dataclass
+
+from .. import units
+
+__all__ = ["ALIASES", "QUANTITIES", "REVERSIBLE", "SIGNED", "Quantity", "applies", "applies_text",
+           "quantity_named", "quantity_problem"]
+
+BOTH = ("closed", "flow")
+
+
+@dataclass(frozen=True)
+class Quantity:
+    """A quantity a limit (or a sweep) can name.
+
+    scope: ``state`` (a property of a state: at a state label, or at a leg's end state), ``record``
+    (an extensive value kept beside the state: volume, volume flow), ``leg`` (a quantity of a leg),
+    ``ratio`` (end over start of a leg, of the state attribute ``attr``) or ``end`` (a state
+    property at a leg's end only, e.g. discharge temperature).
+    """
+
+    name: str
+    kind: str                 # key of units.DIMENSIONS
+    scope: str
+    attr: str
+    systems: tuple[str, ...] = BOTH
+    symbol: str = ""
+    title: str = ""
+    sign: float = 1.0             # −1: the leg quantity ``attr`` with its sign reversed (the trade's sense)
+    on: tuple[str, ...] = ()      # processes where it exists by default (no ``at``); () = every leg
+
+    @property
+    def unit(self) -> str:
+        return units.DIMENSIONS[self.kind]
+
+    @property
+    def margin_kind(self) -> str:
+        return {"temperature": "temperature_difference", "pressure": "pressure_difference"}.get(self.kind, self.kind)
+
+
+def _q(name, kind, scope, attr, systems=BOTH, symbol="", title="", sign=1.0, on=()):
+    return Quantity(name, kind, scope, attr, systems, symbol or attr, title or name.replace("_", " "), sign, on)
+
+
+QUANTITIES: dict[str, Quantity] = {q.name: q for q in (
+    _q("pressure", "pressure", "state", "P"),
+    _q("temperature", "temperature", "state", "T"),
+    _q("specific_volume", "specific_volume", "state", "v"),
+    _q("density", "density", "state", "rho", symbol="ρ"),
+    _q("internal_energy", "specific_energy", "state", "u", title="specific internal energy"),
+    _q("enthalpy", "specific_energy", "state", "h", title="specific enthalpy"),
+    _q("entropy", "specific_entropy", "state", "s", title="specific entropy"),
+    _q("Z", "dimensionless", "state", "Z", title="compressibility factor"),
+    _q("volume", "volume", "record", "V", ("closed",)),
+    _q("volume_flow", "volume_flow", "record", "V_dot", ("flow",), symbol="V̇", title="actual volume flow"),
+    _q("discharge_temperature", "temperature", "end", "T"),
+    _q("pressure_ratio", "dimensionless", "ratio", "P", symbol="r_p"),
+    _q("volume_ratio", "dimensionless", "ratio", "v", symbol="r_v"),
+    _q("n", "dimensionless", "leg", "n", title="polytropic exponent"),
+    _q("W_by_gas", "energy", "leg", "W_by_gas", ("closed",), symbol="W", title="work done by the gas"),
+    _q("Q_to_gas", "energy", "leg", "Q_to_gas", ("closed",), symbol="Q", title="heat added to the gas"),
+    _q("work_on_gas", "energy", "leg", "W_by_gas", ("closed",), symbol="W_on", title="work done on the gas",
+       sign=-1.0),
+    _q("heat_from_gas", "energy", "leg", "Q_to_gas", ("closed",), symbol="Q_out", title="heat removed from the gas",
+       sign=-1.0),
+    _q("dU", "energy", "leg", "dU", ("closed",), symbol="ΔU", title="change of internal energy"),
+    _q("dH", "energy", "leg", "dH", ("closed",), symbol="ΔH", title="change of enthalpy"),
+    _q("dS", "entropy", "leg", "dS", ("closed",), symbol="ΔS", title="change of entropy"),
+    _q("work_in", "specific_energy", "leg", "work_in", ("flow",), symbol="w_in", title="specific work input"),
+    _q("head", "specific_energy", "leg", "head", ("flow",)),
+    _q("head_isentropic", "specific_energy", "leg", "head_isentropic", ("flow",), title="isentropic head"),
+    _q("eta_p", "dimensionless", "leg", "eta_p", ("flow",), symbol="η_p", title="polytropic efficiency"),
+    _q("eta_s", "dimensionless", "leg", "eta_s", ("flow",), symbol="η_s", title="isentropic efficiency"),
+    _q("duty", "power", "leg", "duty", ("flow",), symbol="Q̇"),
+    _q("power", "power", "leg", "power", ("flow",), symbol="P_gas", title="gas power"),
+    _q("shaft_power", "power", "leg", "shaft_power", ("flow",), symbol="P_shaft", title="shaft power"),
+    # the same in the trade's sense: heat removed by a cooler, heat added by a heater, power delivered
+    # by an expander, each positive
+    _q("cooling_duty", "power", "leg", "duty", ("flow",), symbol="Q̇_cool", title="cooling duty", sign=-1.0,
+       on=("cooler",)),
+    _q("heating_duty", "power", "leg", "duty", ("flow",), symbol="Q̇_heat", title="heating duty", on=("heater",)),
+    _q("power_output", "power", "leg", "power", ("flow",), symbol="P_out", title="gas power output", sign=-1.0,
+       on=("expander",)),
+    _q("shaft_power_output", "power", "leg", "shaft_power", ("flow",), symbol="P_{shaft,out}",
+       title="shaft power output", sign=-1.0, on=("expander",)),
+    # train totals in the trade's sense, each positive (one driver for a staged machine, the cooling load)
+    _q("total_power", "power", "total", "ΣP_comp", ("flow",), symbol="ΣP_comp", title="total compressor gas power"),
+    _q("total_power_output", "power", "total", "ΣP_out", ("flow",), symbol="ΣP_out",
+       title="total expander gas power output"),
+    _q("total_cooling_duty", "power", "total", "ΣQ̇_cool", ("flow",), symbol="ΣQ̇_cool", title="total cooling duty"),
+    _q("total_heating_duty", "power", "total", "ΣQ̇_heat", ("flow",), symbol="ΣQ̇_heat", title="total heating duty"),
+    _q("total_shaft_power", "power", "total", "ΣP_shaft", ("flow",), symbol="ΣP_shaft",
+       title="total compressor shaft power"),
+    _q("total_shaft_power_output", "power", "total", "ΣP_{shaft,out}", ("flow",), symbol="ΣP_{shaft,out}",
+       title="total expander shaft power output"),
+)}
+
+#: Other spellings engineers write, mapped to the names above.
+ALIASES = {
+    "P": "pressure", "T": "temperature", "v": "specific_volume", "rho": "density", "u": "internal_energy",
+    "h": "enthalpy", "s": "entropy", "compressibility": "Z", "V": "volume", "V_dot": "volume_flow",
+    "work_by_gas": "W_by_gas", "heat_to_gas": "Q_to_gas", "polytropic_exponent": "n",
+    "polytropic_efficiency": "eta_p", "isentropic_efficiency": "eta_s",
+}
+
+
+#: Flow processes that exchange heat and work along a reversible path: a quantity in the trade's sense
+#: (cooling_duty, power_output) also applies there when a limit names the leg.
+REVERSIBLE = ("polytropic", "isentropic", "isothermal")
+
+
+def applies(q: Quantity, process: str) -> bool:
+    """Whether a leg of this process can carry the quantity (only restricted for the trade's quantities)."""
+    return not q.on or process in q.on or process in REVERSIBLE
+
+
+def applies_text(q: Quantity) -> str:
+    return f"{q.name} applies to {' and '.join(p + ' legs' for p in q.on)} (and reversible flow legs)"
+
+
+#: Signed quantities (work and heat INTO the gas positive, closed-system work BY the gas positive) and
+#: the quantity in the trade's sense to name when a limit meets a negative value.
+SIGNED = {
+    "duty": "cooling_duty", "power": "power_output", "shaft_power": "shaft_power_output",
+    "W_by_gas": "work_on_gas", "Q_to_gas": "heat_from_gas", "work_on_gas": "W_by_gas", "heat_from_gas": "Q_to_gas",
+    "cooling_duty": "heating_duty", "heating_duty": "cooling_duty", "power_output": "power",
+    "shaft_power_output": "shaft_power",
+}
+
+
+def quantity_named(name: str) -> Quantity | None:
+    """The quantity a name or one of its aliases stands for, or None."""
+    return QUANTITIES.get(ALIASES.get(name, name))
+
+
+def quantity_problem(q: Quantity | None, name: str, system: str) -> tuple[str, str] | None:
+    """Why a quantity name cannot be used in a job of this system, or None."""
+    if q is None:
+        close = difflib.get_close_matches(name, list(QUANTITIES) + list(ALIASES), n=1, cutoff=0.6)
+        hint = f"did you mean '{close[0]}'? " if close else ""
+        return (f"'{name}' is not a quantity calcdoc knows",
+                f"{hint}valid for a {system} system: {', '.join(n for n, x in QUANTITIES.items() if system in x.systems)}")
+    if system not in q.systems:
+        other = "steady-flow" if q.systems == ("flow",) else "closed-system"
+        return (f"{q.name} is a {other} quantity, and this job is a {'steady-flow' if system == 'flow' else 'closed'} system",
+                f"valid for a {system} system: {', '.join(n for n, x in QUANTITIES.items() if system in x.systems)}")
+    return None
