@@ -4,10 +4,10 @@ The library raises; only the command line turns an error into a message and an e
 """
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 __all__ = ["EXIT_BAD_INPUT", "EXIT_CHECK_FAILED", "EXIT_INTERNAL", "EXIT_INTERRUPTED", "EXIT_OK", "CalcdocError",
-           "JobError", "PhysicsError", "Problem"]
+           "Finding", "JobError", "PhysicsError", "Problem"]
 
 #: Exit codes of the command line: success, a design check fails (outputs still written), bad input,
 #: an internal error, and interrupted (128 + SIGINT).
@@ -52,12 +52,36 @@ class JobError(CalcdocError):
         super().__init__("\n".join(str(p) for p in self.problems))
 
 
-class PhysicsError(CalcdocError):
-    """A state or path outside what the gas model can compute (exit code 2).
+@dataclass(frozen=True)
+class Finding:
+    """Something found while computing, as a code with its values (SI floats, names, counts); the layer that
+    speaks to the user words it (:mod:`calcdoc.job.messages` for problems of the job file,
+    :mod:`calcdoc.report.words` for warnings and notes), in the job's units.
 
-    ``where`` names the job item (a leg or state), so the message can point into the job file.
+    ``path`` is the key path of the job file the finding concerns (``legs[2].end.pressure``), or "".
     """
 
-    def __init__(self, message: str, where: str = ""):
-        self.where = where
-        super().__init__(message)
+    code: str
+    values: dict = field(default_factory=dict)
+    path: str = ""
+
+    def __str__(self) -> str:
+        return self.code + (" " + ", ".join(f"{k}={v!r}" for k, v in self.values.items()) if self.values else "")
+
+
+class PhysicsError(CalcdocError):
+    """A state or path outside what the gas model can compute (exit code 2): a code and its values (SI).
+
+    Raised as ``PhysicsError("eos.range", T=..., P=...)``; :mod:`calcdoc.job.messages` words it where it
+    becomes a problem of the job file.
+    """
+
+    def __init__(self, code: str, /, **values):
+        self.code = code
+        self.values = values
+        super().__init__(str(Finding(code, values)))
+
+    @property
+    def finding(self) -> Finding:
+        """The error as a finding."""
+        return Finding(self.code, dict(self.values))

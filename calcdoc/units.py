@@ -454,3 +454,39 @@ def display(value_si: float, si_unit: str, system: str, difference: bool = False
     if difference and unit == "psi":
         return val, "psi"
     return val, pretty_unit(unit) if unit != "degR" else "°R"
+
+
+class _Phrase:
+    """Fills a template of a message with values in a unit system (see :func:`phrase`)."""
+
+    def __init__(self, system: str):
+        import string
+
+        outer = self
+
+        class _F(string.Formatter):
+            def format_field(self, value, spec):
+                return outer.field(value, spec)
+
+        self.system = system
+        self.formatter = _F()
+
+    def field(self, value, spec: str) -> str:
+        if not spec or isinstance(value, str):
+            return format(value, spec if not isinstance(value, str) else "")
+        unit, _, sig = spec.partition("~")
+        diff = unit.startswith("d") and unit[1:] in ("K", "Pa")
+        si = unit[1:] if diff else unit
+        if si in _SYSTEMS["SI"] or "|" in si:
+            return say(float(value), si, self.system, int(sig) if sig else 5, difference=diff)
+        return format(value, spec)
+
+
+def phrase(template: str, values: dict, system: str = "SI") -> str:
+    """A message from a template and SI values, each shown in the job's unit system.
+
+    A field ``{P:Pa}`` is the SI value ``P`` [Pa] shown in the system's pressure unit (kPa, psia), ``{T:K~4}``
+    a temperature to 4 significant figures (``~`` then the number of figures) (°C, °F), ``{dT:dK}`` a temperature difference (K, °R) and
+    ``{dP:dPa}`` a pressure difference; any other spec is Python's (``{eta:.3f}``), and text is put in as it is.
+    """
+    return _Phrase(system).formatter.format(template, **values)

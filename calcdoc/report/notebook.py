@@ -4,6 +4,7 @@ from __future__ import annotations
 from html import escape
 
 from .. import units
+from .words import say
 
 
 def _v(value, si_unit: str, system: str, sig: int = 5) -> str:
@@ -53,6 +54,6 @@ def results_html(res) -> str:
         out.append("</tbody></table>")
         out.append(f"<p><b>{'All checks pass.' if res.passed else 'A design check FAILS: this calculation does not pass.'}</b></p>")
     for w in res.warnings:
-        out.append(f"<p>Warning: {escape(w)}</p>")
+        out.append(f"<p>Warning: {escape(say(w, S))}</p>")
     out.append("</div>")
     return "\n".join(out)

@@ -16,7 +16,7 @@ from urllib.parse import unquote, urlsplit
 
 from .. import units
 from ..engine import software_versions
-from . import format as fmt, methods
+from . import format as fmt, methods, words
 from .charts import diagrams, sweep_chart
 
 CAUTIONS = (
@@ -69,7 +69,8 @@ def _env():
                              trim_blocks=True, lstrip_blocks=True)
     env.filters.update(num=fmt.num, qty=fmt.qty, unit_of=fmt.unit_of, value_in=fmt.value_in,
                        symbol=fmt.symbol, eq=fmt.equation, result_si=fmt.result_si,
-                       css_string=fmt.css_string, flavour=fmt.flavour, subscripts=fmt.subscripts)
+                       css_string=fmt.css_string, flavour=fmt.flavour, subscripts=fmt.subscripts,
+                       say=words.say, note=words.note)
     return env
 
 

@@ -5,6 +5,7 @@ from .. import units
 from ..engine.revision import Diff
 from ..units import display
 from .format import _num
+from .words import say
 
 __all__ = ["diff_text", "summary"]
 
@@ -69,7 +70,7 @@ def summary(results, written) -> None:
     for c in results.checks:
         print(f"  check {c.name} at {c.where}: {c.status.upper()}")
     for w in results.warnings:
-        print(f"  warning: {w}")
+        print(f"  warning: {say(w, system)}")
     for p in written:
         print(f"  wrote {p}")
 

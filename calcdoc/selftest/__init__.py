@@ -22,7 +22,7 @@ from pathlib import Path
 
 from .. import __version__
 from ..engine import run
-from ..engine.results import to_json as results_json
+from ..report.jsonfile import to_contract as results_json
 from ..errors import CalcdocError
 from ..job import CLOSED_PROCESSES, FLOW_PROCESSES, loads
 from ..job.source import dump as dump_yaml
