@@ -24,7 +24,7 @@ from calcdoc.report import render
 from calcdoc.engine.results import Check
 
 
-ROOT = Path(__file__).resolve().parents[1]
+ROOT = Path(__file__).resolve().parents[2]
 DEMO = ROOT / "example_jobs" / "press_gas_spring.yaml"
 DEMO_US = ROOT / "example_jobs" / "press_gas_spring_us.yaml"
 DEMO_CO2 = ROOT / "example_jobs" / "co2_cylinder_charge.yaml"

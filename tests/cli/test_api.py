@@ -13,7 +13,7 @@ def test_public_names_are_listed():
 def test_library_use(tmp_path):
     from pathlib import Path
 
-    demo = Path(__file__).resolve().parents[1] / "example_jobs" / "press_gas_spring.yaml"
+    demo = Path(__file__).resolve().parents[2] / "example_jobs" / "press_gas_spring.yaml"
     res = calcdoc.run(calcdoc.load(demo))
     paths = calcdoc.write(res, tmp_path, pdf=False)
     assert [p.suffix for p in paths] == [".json"]

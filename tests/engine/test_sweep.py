@@ -14,7 +14,7 @@ from calcdoc.errors import JobError
 from calcdoc.job import loads
 from calcdoc.report.jsonfile import dumps
 
-EXAMPLE = Path(__file__).resolve().parents[1] / "example_jobs" / "press_gas_spring.yaml"
+EXAMPLE = Path(__file__).resolve().parents[2] / "example_jobs" / "press_gas_spring.yaml"
 
 SWEEP = """\
 limits:

@@ -18,7 +18,7 @@ from calcdoc.job import loads
 from calcdoc.job.schema import CLOSED_START_KEYS, FLOW_START_KEYS, job_schema
 from calcdoc.job.starter import STARTERS
 
-EXAMPLES = sorted((Path(__file__).resolve().parents[1] / "example_jobs").glob("*.yaml"))
+EXAMPLES = sorted((Path(__file__).resolve().parents[2] / "example_jobs").glob("*.yaml"))
 
 
 def as_json_data(text: str):

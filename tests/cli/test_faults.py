@@ -194,7 +194,7 @@ def test_yaml_builds_plain_data_only(tmp_path, capsys):
 
 
 def test_no_eval_exec_or_template_from_job_text_in_the_source():
-    src = Path(__file__).parents[1] / "calcdoc"
+    src = Path(__file__).parents[2] / "calcdoc"
     for py in src.rglob("*.py"):
         text = py.read_text(encoding="utf-8")
         for bad in (r"\beval\(", r"\bexec\(", r"from_string\(", r"yaml\.load\(", r"unsafe_load", r"yaml\.Loader\b",

@@ -18,7 +18,7 @@ from calcdoc.cli import main
 from calcdoc.cli.verify import RERUN_RTOL, VerifyError, _compare, read_package, verify
 
 
-ROOT = Path(__file__).resolve().parents[1]
+ROOT = Path(__file__).resolve().parents[2]
 DEMO = ROOT / "example_jobs" / "press_gas_spring.yaml"
 
 
