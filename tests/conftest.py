@@ -62,3 +62,15 @@ def run_flow_text():
 
         return run(loads(text, "job.yaml"))
     return run
+
+
+def said(res, items=None) -> list[str]:
+    """The warnings of results (or other findings: facts, notes) as the report words them, in the job's units."""
+    from calcdoc.report.words import NOTES, note, say
+
+    if items is None:
+        items = res.warnings
+    from calcdoc.errors import Finding
+
+    return [say(w, res.job.units) if isinstance(w, Finding) and (w.code not in NOTES) else note(w, res.job.units)
+            for w in items]

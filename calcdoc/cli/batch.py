@@ -90,7 +90,7 @@ def run_batch(paths: list[str], opts: dict, quiet: bool = False, workers: int | 
             for fut in as_completed(futures):
                 g = futures[fut]
                 try:
-                    for k, outcome in zip(g, fut.result()):
+                    for k, outcome in zip(g, fut.result(), strict=True):
                         outcomes[k] = outcome
                 except BrokenProcessPool:
                     retry.extend(g)

@@ -227,7 +227,7 @@ def _compare(old, new, path: str = "") -> list[str]:
     if isinstance(old, list) and isinstance(new, list):
         if len(old) != len(new):
             return [f"{path}: {len(old)} items attached, {len(new)} recomputed"]
-        return [d for i, (a, b) in enumerate(zip(old, new)) for d in _compare(a, b, f"{path}[{i}]")]
+        return [d for i, (a, b) in enumerate(zip(old, new, strict=True)) for d in _compare(a, b, f"{path}[{i}]")]
     num = (int, float)
     if isinstance(old, num) and isinstance(new, num) and not isinstance(old, bool) and not isinstance(new, bool):
         if math.isclose(old, new, rel_tol=RERUN_RTOL, abs_tol=1e-12):

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import dataclasses
 
+from ..errors import Finding
 from ..job.model import Job
 from .checks import with_checks
 from .closed import compute_closed
@@ -23,10 +24,7 @@ def compute(job: Job) -> Results:
 def run(job: Job) -> Results:
     """Compute a job: its states, legs and warnings, the checks of its limits and its sweep."""
     res = compute(job)
-    unmarked = [i for i in job.inputs if i.unmarked_pressure]
+    unmarked = tuple((i.path, i.entered, i.line) for i in job.inputs if i.unmarked_pressure)
     if unmarked:
-        listed = ", ".join(f"{i.path} = {i.entered} (line {i.line})" for i in unmarked)
-        res = dataclasses.replace(res, warnings=res.warnings + (
-            f"Pressures written in psi or kgf/cm2 without a gauge or absolute marker are taken as absolute: {listed}. "
-            "If a gauge pressure is meant, write psig (with the site atmosphere); write psia to make it explicit.",))
+        res = dataclasses.replace(res, warnings=res.warnings + (Finding("pressure.unmarked", {"inputs": unmarked}),))
     return with_sweep(job, with_checks(job, res), compute)

@@ -18,9 +18,10 @@ from __future__ import annotations
 import dataclasses
 import math
 
-from ..errors import JobError, Problem
+from ..errors import Finding, JobError
+from ..job.messages import problem
 from ..job.model import Job, LimitSpec
-from ..job.quantities import QUANTITIES, SIGNED, Quantity, applies, applies_text
+from ..job.quantities import QUANTITIES, SIGNED, Quantity, applies, applies_text, place_text
 from ..physics.calc import Calc, Term
 from .results import Check
 
@@ -41,8 +42,8 @@ def locations(job: Job, results, q: Quantity, at: tuple[str, ...], where: tuple[
     recs = {rec.label: rec for rec in results.states}
     gas_method = getattr(results.gas, "eos_method", "") or "input"
 
-    def fail(found: str, valid: str):
-        raise JobError([Problem(job.name, where[0], where[1], path, found, valid)])
+    def fail(code: str, **values):
+        raise JobError([problem(job, Finding(code, values, path), where=where)])
 
     def at_state(rec):
         if q.scope == "record":
@@ -57,7 +58,7 @@ def locations(job: Job, results, q: Quantity, at: tuple[str, ...], where: tuple[
         if q.scope in ("state", "record", "end"):
             rec = results.states[leg.i]
             c = at_state(rec)
-            return c, f"{leg.name} (end, state {rec.label})"
+            return c, place_text("leg_end", leg.name, rec.label)
         if q.scope == "ratio":
             a, b = getattr(leg.end, q.attr), getattr(leg.start, q.attr)
             sym = "P" if q.attr == "P" else "v"
@@ -69,24 +70,25 @@ def locations(job: Job, results, q: Quantity, at: tuple[str, ...], where: tuple[
             return None, leg.name
         if q.sign < 0:
             c = Calc(f"{q.symbol} ({leg.name})", -c.value, c.unit, "−{x}", "sign.trade",
-                     {"x": Term(c.symbol, c.value, c.unit)}, note=f"{q.title}: {c.symbol} with its sign reversed")
+                     {"x": Term(c.symbol, c.value, c.unit)}, note=Finding("sign_reversed", {"title": q.title,
+                                                                                             "symbol": c.symbol}))
         return c, leg.name
 
     out: list[tuple[str, Calc]] = []
     if q.scope == "total":
         found = [c for c in getattr(results, "totals", ()) if c.symbol == q.attr]
         if not found:
-            fail(f"this job has no {q.title}", "name a quantity this job computes")
-        if "partial:" in found[0].note:
-            fail(f"the {q.title} is partial ({found[0].note.split('partial:')[1].strip()})",
-                 "give every machine a mechanical_efficiency, or limit each leg's shaft_power")
-        return [("train", found[0])]
+            fail("limit.no_total", title=q.title)
+        note = found[0].note
+        if isinstance(note, Finding) and note.code == "total.partial":
+            fail("limit.partial_total", title=q.title, missing=note.values["missing"])
+        return [(place_text("train"), found[0])]
     if not at:
         if q.scope in ("state", "record"):
             for rec in results.states:
                 c = at_state(rec)
                 if c is not None:
-                    out.append((f"state {rec.label}", c))
+                    out.append((place_text("state", label=rec.label), c))
         else:
             for leg in results.legs:
                 if q.on and leg.process not in q.on:
@@ -96,10 +98,9 @@ def locations(job: Job, results, q: Quantity, at: tuple[str, ...], where: tuple[
                     out.append((text, c))
         if not out:
             if q.on:
-                fail(f"no leg of this job has {q.name} (it applies to {' and '.join(p + ' legs' for p in q.on)})",
-                     f"legs and their processes: {'; '.join(f'{leg.name}: {leg.process}' for leg in results.legs)}")
-            fail(f"no leg of this job has {q.name}",
-                 f"legs and their quantities: {_leg_quantities(results)}")
+                fail("limit.no_leg_on", quantity=q.name, on=q.on,
+                     legs=tuple((leg.name, leg.process) for leg in results.legs))
+            fail("limit.no_leg", quantity=q.name, legs=tuple((leg.name, tuple(leg.quantities)) for leg in results.legs))
         return out
     for name in at:
         # a compressor leg split into stages by the job's staging block answers for every stage
@@ -110,33 +111,27 @@ def locations(job: Job, results, q: Quantity, at: tuple[str, ...], where: tuple[
         if stages:
             for stage in stages:
                 if not applies(q, legs[stage].process):
-                    fail(f"'{stage}' is a {legs[stage].process} leg", f"{applies_text(q)}; name such a leg")
+                    fail("limit.wrong_process", leg=stage, process=legs[stage].process, applies=applies_text(q))
                 c, text = at_leg(legs[stage])
                 if c is None:
                     leg = legs[stage]
-                    fail(f"leg '{stage}' ({leg.process}) has no {q.name}",
-                         f"its quantities are: {', '.join(leg.quantities) or 'none'}; name a leg that has {q.name}")
+                    fail("limit.leg_lacks", leg=stage, process=leg.process, quantity=q.name,
+                         quantities=tuple(leg.quantities))
                 out.append((text, c))
         elif name in recs and q.scope in ("state", "record"):
             c = at_state(recs[name])
             if c is None:
-                fail(f"state {name} has no {q.name}", "name another quantity")
-            out.append((f"state {name}", c))
+                fail("limit.state_lacks", label=name, quantity=q.name)
+            out.append((place_text("state", label=name), c))
         elif name in recs:
-            fail(f"{q.name} is a quantity of a leg, but '{name}' is a state label",
-                 f"name a leg: {', '.join(repr(n) for n in legs)}")
+            fail("limit.leg_quantity_at_state", quantity=q.name, label=name, legs=tuple(legs))
         else:
-            fail(f"this job has no leg or state named '{name}' that has {q.name}",
-                 f"legs: {', '.join(repr(n) for n in legs)}; states: {', '.join(recs)}")
+            fail("limit.no_place", name=name, quantity=q.name, legs=tuple(legs), states=tuple(recs))
     return out
 
 
 def _attr_unit(attr: str) -> str:
     return {"P": "Pa", "v": "m**3/kg", "T": "K"}.get(attr, "")
-
-
-def _leg_quantities(results) -> str:
-    return "; ".join(f"{leg.name}: {', '.join(leg.quantities) or 'none'}" for leg in results.legs) or "no legs"
 
 
 def judge(spec: LimitSpec, kind: str, where: str, value: Calc):
@@ -170,7 +165,7 @@ def evaluate(job: Job, results) -> tuple[Check, ...]:
             else:
                 sign = 1.0 if kind == "max" else -1.0
                 where, c = max(locs, key=lambda wc: sign * wc[1].value)   # first place of the governing value
-                text = where if len(locs) == 1 else f"{where}, governing of {len(locs)}"
+                text = where if len(locs) == 1 else place_text("governing", where, count=len(locs))
                 out.append(judge(spec, kind, text, c))
     return tuple(out)
 
@@ -185,19 +180,15 @@ def _refuse_negative(job: Job, spec: LimitSpec, locs: list[tuple[str, Calc]]) ->
     if not bad:
         return
     where, c = bad[0]
-    conv = ("work done BY the gas and heat added TO the gas are positive" if "closed" in q.systems and "flow" not in
-            q.systems else "shaft work and heat INTO the gas are positive")
     lim = spec.max or spec.min
-    entered = f" {'max' if spec.max else 'min'} {lim.entered}" if lim is not None else ""
     instead = SIGNED.get(q.name)
-    found = (f"the limit '{spec.name}' ({q.name}{entered}) meets a negative value at {where} "
-             f"({c.value:.6g} {q.unit}): it is negative by the sign convention ({conv}), so a limit on it "
-             "does not mean what it says")
-    valid = (f"use quantity: {instead} ({QUANTITIES[instead].title}, positive there)" if instead else
-             "name a quantity that is positive at every place the limit applies to")
-    if not spec.at and instead:
-        valid += ", or name with 'at' the places where the value is positive"
-    raise JobError([Problem(job.name, spec.line, spec.col, f"{spec.path}.quantity", found, valid)])
+    f = Finding("limit.negative", {
+        "limit": spec.name, "quantity": q.name, "bound": ("max" if spec.max else "min") if lim is not None else "",
+        "entered": lim.entered if lim is not None else "", "where": where, "value": c.value, "unit": q.unit,
+        "closed": "closed" in q.systems and "flow" not in q.systems, "instead": instead or "",
+        "instead_title": QUANTITIES[instead].title if instead else "", "everywhere": not spec.at},
+        f"{spec.path}.quantity")
+    raise JobError([problem(job, f, where=(spec.line, spec.col))])
 
 
 def with_checks(job: Job, results):

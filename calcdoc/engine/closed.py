@@ -1,7 +1,8 @@
 """Closed systems: a fixed mass of gas through its legs, from the start state (mass or volume given)."""
 from __future__ import annotations
 
-from ..errors import JobError, PhysicsError
+from ..errors import Finding, JobError, PhysicsError
+from ..job.messages import problem
 from ..job.model import Job, LegSpec
 from ..physics.calc import Calc, Term
 from ..physics.closed import LegResult, Target, closed_leg
@@ -21,7 +22,7 @@ def _start_state(job: Job, gas: Gas) -> State:
     try:
         return gas.state_PT(P, T)
     except PhysicsError as exc:
-        raise JobError([start_state_problem(job, gas, str(exc))]) from None
+        raise JobError([start_state_problem(job, gas, exc)]) from None
 
 
 def _targets(job: Job, leg: LegSpec, s1: State, m: float) -> list[Target]:
@@ -40,9 +41,9 @@ def _targets(job: Job, leg: LegSpec, s1: State, m: float) -> list[Target]:
     return out
 
 
-def _phase_warnings(gas: Gas, label: str, states: list[State], system: str) -> list[str]:
+def _phase_warnings(gas: Gas, label: Finding, states: list[State]) -> list[Finding]:
     """Warnings for states in or near the two-phase region (pure fluids: saturation temperature)."""
-    return phase_warnings(gas.dew_temperature, label, states, system, NEAR_SATURATION_K, "saturation temperature")
+    return phase_warnings(gas.dew_temperature, label, states, NEAR_SATURATION_K, "saturation")
 
 
 def compute_closed(job: Job) -> Results:
@@ -64,10 +65,10 @@ def compute_closed(job: Job) -> Results:
                                 {"m": Term("m", m, "kg"), "v": Term("v_1", s1.v, "m**3/kg")}))
     for prop, unit in (("u", "J/kg"), ("h", "J/kg"), ("s", "J/(kg*K)")):
         start_calcs.append(Calc(f"{prop}_1", getattr(s1, prop), unit, f"{prop}(P_1, T_1)", gas.eos_method))
-    warnings: list[str] = []
+    warnings: list[Finding] = []
     legs: list[LegResult] = []
     records = [StateRecord(1, "1", s1, V=m * s1.v)]
-    warnings += _phase_warnings(gas, "Start state", [s1], job.units)
+    warnings += _phase_warnings(gas, Finding("label.start"), [s1])
     s = s1
     for k, leg in enumerate(job.legs):
         i = k + 1
@@ -76,16 +77,13 @@ def compute_closed(job: Job) -> Results:
                              leg.n.si if leg.n is not None else None)
         except PhysicsError as exc:
             where = f"{leg.path}.end" + (f".{next(iter(leg.end))}" if len(leg.end) == 1 else "")
-            raise JobError([job.problem(where, f"leg '{leg.name}': {exc}",
-                                        "check the end target and the process against the start of this leg")]) from None
+            raise JobError([problem(job, Finding("leg.closed_failed", {"leg": leg.name, "error": exc}, where))]) from None
         except OverflowError:
             # an exponent or ratio so extreme that the path's numbers leave floating point
-            raise JobError([job.problem(leg.path + (".n" if leg.n is not None else ".end"),
-                                        f"leg '{leg.name}': the path P·Vⁿ = const with these values gives numbers "
-                                        "beyond floating-point range",
-                                        "use a physical exponent (for a fixed volume use process: isochoric)")]) from None
+            raise JobError([problem(job, Finding("leg.overflow", {"leg": leg.name},
+                                                 leg.path + (".n" if leg.n is not None else ".end")))]) from None
         legs.append(res)
-        warnings += _phase_warnings(gas, f"Leg '{leg.name}'", list(res.path), job.units)
+        warnings += _phase_warnings(gas, Finding("label.leg", {"leg": leg.name}), list(res.path))
         s = res.end
         records.append(StateRecord(i + 1, str(i + 1), s, V=m * s.v))
     warnings += ideal_condensation_warnings(job, gas, legs, s1)

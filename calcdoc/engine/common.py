@@ -6,10 +6,11 @@ from functools import lru_cache
 from importlib import metadata
 
 from .. import __version__
-from ..errors import JobError, PhysicsError
+from ..errors import Finding, JobError, PhysicsError
+from ..job.messages import problem
 from ..job.model import Job
 from ..physics.calc import Calc, Term
-from ..physics.fluids import fluid_names_hint
+from ..physics.fluids import closest_fluids
 from ..physics.gas import R_U, Gas, IdealGas, RealGas
 from .diagnose import fluid_problems
 
@@ -39,7 +40,9 @@ def make_gas(job: Job) -> tuple[Gas, list[Calc]]:
         if problems:
             raise JobError(problems) from None
         path = "gas.fluid" if spec.fluid else "gas.mixture"
-        raise JobError([job.problem(path, str(exc), _fluid_hint(spec))]) from None
+        names = [spec.fluid] if spec.fluid else [c for c, _ in spec.mixture]
+        close = tuple(c for nm in names for c in closest_fluids(nm or "") if nm != c)
+        raise JobError([problem(job, Finding("gas.not_made", {"error": exc, "close": close}, path))]) from None
 
 
 @lru_cache(maxsize=8)
@@ -47,11 +50,6 @@ def shared_real_gas(fluid, mixture) -> RealGas:
     """One real-gas object per fluid and process, reused by every job and sweep point that needs it
     (its CoolProp state is set afresh by every flash, so reuse does not change results)."""
     return RealGas(fluid, mixture)
-
-
-def _fluid_hint(spec) -> str:
-    names = [spec.fluid] if spec.fluid else [c for c, _ in spec.mixture]
-    return fluid_names_hint(names)
 
 
 def _ideal_gas(job: Job) -> tuple[Gas, list[Calc]]:
@@ -81,7 +79,7 @@ def _ideal_gas(job: Job) -> tuple[Gas, list[Calc]]:
         k = cp0 / (cp0 - R)
         calcs.append(Calc("k", k, "", "{cp0} / ({cp0} − {R})", "eos.real",
                           {"cp0": Term("c_p0", cp0, "J/(kg*K)"), "R": Term("R", R, "J/(kg*K)")},
-                          note="ideal-gas heat capacity of the fluid at the start temperature"))
+                          note="cp0_at_start"))
     gas = IdealGas(name, k, M)
     if fluid is not None:
         gas.eos_refs = fluid.eos_refs
@@ -101,15 +99,14 @@ def site_calcs(job: Job) -> list[Calc]:
     if site.elevation is not None:
         out.append(Calc("P_atm", site.P_atm, "Pa", "P_0·(T_0/(T_0 + L·H))^(g_0·M_0/(R*·L)), H = r_0·{z}/(r_0 + {z})",
                         "atm.std", {"z": Term("z", site.elevation.si, "m")},
-                        note="U.S. Standard Atmosphere 1976, troposphere: P_0 = 101.325 kPa, T_0 = 288.15 K, "
-                             "L = −0.0065 K/m, r_0 = 6 356 766 m"))
+                        note="std_atmosphere"))
     else:
         out.append(Calc("P_atm", site.P_atm, "Pa", "{P}", "input", {"P": Term("P_atm", site.P_atm, "Pa")}))
     for inp in job.inputs:
         if inp.gauge:
             out.append(Calc(f"P ({inp.path})", inp.si, "Pa", "{Pg} + {Patm}", "gauge",
                             {"Pg": Term("P_g", inp.si - site.P_atm, "Pa"), "Patm": Term("P_atm", site.P_atm, "Pa")},
-                            note=f"entered as {inp.entered}"))
+                            note=Finding("entered_as", {"entered": inp.entered})))
     return out
 
 
@@ -127,7 +124,7 @@ def job_basis(job: Job, gas: Gas) -> dict:
     """The basis of the results: the gas model and the site atmosphere (for the JSON and the report)."""
     site = job.site
     return {
-        "gas": {"model": gas.model, "description": gas.describe(), "molar_mass": {"value": gas.M, "unit": "kg/mol"},
+        "gas": {"model": gas.model, "molar_mass": {"value": gas.M, "unit": "kg/mol"},
                 "eos_references": list(gas.eos_refs),
                 **({"k": gas.k} if isinstance(gas, IdealGas) else {})},
         "site": {"atmosphere": None if site.P_atm is None else {"value": site.P_atm, "unit": "Pa"},

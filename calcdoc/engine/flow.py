@@ -8,12 +8,12 @@ for the real-gas path integration. Sign convention: shaft work and heat INTO the
 """
 from __future__ import annotations
 
+import dataclasses
 from dataclasses import dataclass
 
-import dataclasses
-
-from ..errors import JobError, PhysicsError
+from ..errors import Finding, JobError, PhysicsError
 from ..job.flowopts import direction_problem
+from ..job.messages import problem
 from ..job.model import Input, Job, LegOptions, LegSpec, Staging
 from ..physics.calc import Calc, Term
 from ..physics.closed import LegResult
@@ -21,15 +21,14 @@ from ..physics.flowlegs import Ctx, MeasuredEndError, heat_exchanger, machine, r
 from ..physics.flowpath import Eos, TwoPhaseError
 from ..physics.gas import RealGas, State
 from ..physics.staging import stage_ratio_calc, suction_pressures
-from ..units import display
 from .common import job_basis, make_gas, saturation_near, site_calcs, software_versions
 from .diagnose import ideal_condensation_warnings, phase_warnings
 from .results import Results, StateRecord
 
 __all__ = ["FlowResults", "run_flow"]
 
-#: Marks the note of a shaft-power total that leaves out machines with no mechanical efficiency.
-PARTIAL = "partial:"
+#: The note code of a shaft-power total that leaves out machines with no mechanical efficiency.
+PARTIAL = "total.partial"
 
 #: A state closer than this to its dew (saturation) temperature gets a warning [K] (common practice).
 NEAR_DEW_K = 5.0
@@ -51,19 +50,18 @@ def run_flow(job: Job) -> FlowResults:
     gas, gas_calcs = make_gas(job)
     eos = Eos(gas) if isinstance(gas, RealGas) else None
     ctx = Ctx(gas, eos, 0.0)
-    warnings: list[str] = []
+    warnings: list[Finding] = []
     if eos is not None and eos.envelope_note:
-        warnings.append(f"Gas: {eos.envelope_note}; mixture states are flashed without an imposed phase.")
+        warnings.append(Finding("gas.envelope_failed", {"detail": eos.envelope_note}))
     P1, T1 = job.start.pressure.si, job.start.temperature.si
     try:
         s1 = ctx.state(P1, T1)
     except PhysicsError as exc:
-        raise JobError([job.problem("start", f"the start state cannot be computed: {exc}",
-                                    "check the start pressure and temperature against the fluid's range")]) from None
+        raise JobError([problem(job, Finding("start.not_computed", {"error": exc}, "start"))]) from None
     flow = _flow_calcs(job, ctx, s1)
     ctx.m_dot = flow["m_dot"].value
     start_calcs = site_calcs(job) + list(gas_calcs) + [Calc("v_1", s1.v, "m**3/kg", "v(P_1, T_1)", gas.eos_method)]
-    warnings += _phase_warnings(ctx, "Start state", [s1], True, job.units)
+    warnings += _phase_warnings(ctx, Finding("label.start"), [s1], True)
     legs: list[LegResult] = []
     staging_json = []
     s = s1
@@ -72,25 +70,22 @@ def run_flow(job: Job) -> FlowResults:
             made, info = _leg(job, ctx, leg, leg.options, len(legs) + 1, s)
         except TwoPhaseError as exc:
             target = (leg.end.get("pressure") or leg.end.get("pressure_ratio") or leg.end.get("temperature"))
-            raise _problem_at(job, target, f"leg '{leg.name}' ({leg.process}): {exc}",
-                             "this leg kind is computed for a single phase only: end it above the saturation "
-                             "pressure, start it warmer, or use a throttle (which gives a two-phase outlet)") from None
+            raise _problem_at(job, target, Finding("leg.two_phase", {"leg": leg.name, "process": leg.process,
+                                                                      "error": exc})) from None
         except MeasuredEndError as exc:
-            raise _problem_at(job, leg.end["temperature"], f"leg '{leg.name}': {exc}", exc.valid) from None
+            raise _problem_at(job, leg.end["temperature"], Finding("leg.measured", {"leg": leg.name, "error": exc})) from None
         except PhysicsError as exc:
-            raise JobError([job.problem(f"{leg.path}.end", f"leg '{leg.name}': {exc}",
-                                        "check the end target, the efficiency and the gas against the start of "
-                                        "this leg")]) from None
+            raise JobError([problem(job, Finding("leg.flow_failed", {"leg": leg.name, "error": exc},
+                                                 f"{leg.path}.end"))]) from None
         if info:
             staging_json.append(info)
         for res in made:
-            warnings += _phase_warnings(ctx, f"Leg '{res.name}'", list(res.path),
-                                        res.process in ("cooler", "throttle", "expander"), job.units)
+            warnings += _phase_warnings(ctx, Finding("label.leg", {"leg": res.name}), list(res.path),
+                                        res.process in ("cooler", "throttle", "expander"))
             if res.process == "throttle" and res.end.quality is not None:
                 e = res.end
-                warnings.append(f"Leg '{res.name}': the outlet is two-phase at P = {e.P / 1e3:.5g} kPa, saturation "
-                                f"temperature {e.T - 273.15:.4g} °C, vapour quality x = {e.quality:.4g}. "
-                                "Condensation: liquid leaves the throttle; check that what follows accepts it.")
+                warnings.append(Finding("throttle.two_phase_outlet", {"leg": res.name, "P": e.P, "T": e.T,
+                                                                     "x": e.quality}))
             legs.append(res)
             s = res.end
     records = tuple(StateRecord(k + 1, str(k + 1), st, V_dot=ctx.m_dot * st.v)
@@ -127,18 +122,18 @@ def _flow_calcs(job: Job, ctx: Ctx, s1: State) -> dict[str, Calc]:
         m = V / s1.v
         out["m_dot"] = Calc("ṁ", m, "kg/s", "{V}/{v1}", "flow.mass_flow", {"V": Term("V̇_1", V, "m**3/s"),
                                                                          "v1": Term("v_1", s1.v, "m**3/kg")},
-                            note="actual volume flow at the start state")
+                            note="start_volume_flow")
     else:
         Ps, Ts = st.standard_pressure.si, st.standard_temperature.si
         try:
             sstd = ctx.state(Ps, Ts)
         except PhysicsError as exc:
-            raise JobError([job.problem("start.standard_pressure", f"the standard reference state cannot be "
-                                        f"computed: {exc}", "check standard_pressure and standard_temperature")]) from None
+            raise JobError([problem(job, Finding("start.standard_not_computed", {"error": exc},
+                                                 "start.standard_pressure"))]) from None
         out["v_std"] = Calc("v_std", sstd.v, "m**3/kg", "v(P_std, T_std)", ctx.gas.eos_method,
                             {"P": Term("P_std", Ps, "Pa"), "T": Term("T_std", Ts, "K")},
-                            note=f"reference conditions stated in the job: {st.standard_pressure.entered}, "
-                                 f"{st.standard_temperature.entered}")
+                            note=Finding("standard_conditions", {"P": st.standard_pressure.entered,
+                                                                 "T": st.standard_temperature.entered}))
         V = st.standard_volume_flow.si
         m = V / sstd.v
         out["V_dot_std"] = Calc("V̇_std", V, "m**3/s", "{V}", "input", {"V": Term("V̇_std", V, "m**3/s")})
@@ -148,7 +143,7 @@ def _flow_calcs(job: Job, ctx: Ctx, s1: State) -> dict[str, Calc]:
                                                                           "M": Term("M", M, "kg/mol")})
     out["V_dot_1"] = Calc("V̇_1", m * s1.v, "m**3/s", "{m}·{v1}", "state.volume",
                           {"m": Term("ṁ", m, "kg/s"), "v1": Term("v_1", s1.v, "m**3/kg")},
-                          note="actual volume flow at the start state")
+                          note="start_volume_flow")
     return out
 
 
@@ -191,8 +186,7 @@ def _drop(job: Job, drop, i: int, P1: float) -> tuple[float, Calc | None]:
     if drop.inp is None:
         return P1, None
     if P2 <= 0:
-        raise _problem_at(job, drop.inp, f"the pressure drop {drop.inp.entered} is larger than the inlet pressure "
-                         f"({P1 / 1e3:.6g} kPa)", "give a drop smaller than the inlet pressure")
+        raise _problem_at(job, drop.inp, Finding("drop.too_large", {"entered": drop.inp.entered, "P": P1}))
     if drop.fraction is not None:
         return P2, Calc(f"P_{j}", P2, "Pa", "{P1}·(1 − {d})", "flow.pressure_drop",
                         {"P1": Term(f"P_{i}", P1, "Pa"), "d": Term("δ", drop.fraction, "")})
@@ -215,9 +209,8 @@ def _train(job, ctx, leg, st: Staging, N, i, s, P_out, eta_p, eta_s, eta_m) -> l
         s, i = res.end, i + 1
         if k < N - 1:
             if st.T_cool.si > s.T:
-                raise _problem_at(job, st.T_cool, f"the intercooler outlet {st.T_cool.entered} is above the discharge "
-                                 f"temperature of stage {k + 1} ({s.T - 273.15:.4g} °C)",
-                                 "give an intercooler outlet below the stage discharge temperature")
+                raise _problem_at(job, st.T_cool, Finding("intercooler.above_discharge",
+                                                          {"entered": st.T_cool.entered, "k": k + 1, "T": s.T}))
             P2, dc = _drop(job, d, i, s.P)
             hx = heat_exchanger(ctx, f"{leg.name}, intercooler {k + 1}", "cooler", i, s, P2, st.T_cool.si, dc)
             out.append(hx)
@@ -228,9 +221,8 @@ def _train(job, ctx, leg, st: Staging, N, i, s, P_out, eta_p, eta_s, eta_m) -> l
 def _staged(job, ctx, leg, st: Staging, i, s, P_out, eta_p, eta_s, eta_m) -> tuple[list[LegResult], dict]:
     if st.stages is not None:
         legs = _train(job, ctx, leg, st, st.stages, i, s, P_out, eta_p, eta_s, eta_m)
-        why = (f"Staged into {st.stages} stages with equal pressure ratios (allowing for the intercooler pressure "
-               f"drops), as the job asks.")
-        info = {"leg": leg.name, "stages": st.stages, "rule": "given number of stages"}
+        why = Finding("staging.given", {"stages": st.stages})
+        info = {"leg": leg.name, "stages": st.stages, "rule": "given"}
     else:
         limit = st.T_max.si
         tried = []
@@ -242,15 +234,12 @@ def _staged(job, ctx, leg, st: Staging, i, s, P_out, eta_p, eta_s, eta_m) -> tup
             if Tmax <= limit:
                 break
         else:
-            raise _problem_at(job, st.T_max, f"no number of stages up to {st.max_stages} keeps every discharge at or "
-                             f"below {st.T_max.entered} ({st.max_stages} stages give {_temp_text(tried[-1][1], job)})",
-                             "raise max_stages, lower the intercooler outlet temperature, or review the limit")
+            raise _problem_at(job, st.T_max, Finding("staging.no_stage_count", {
+                "max_stages": st.max_stages, "entered": st.T_max.entered, "T": tried[-1][1]}))
         N = tried[-1][0]
-        steps = "; ".join(f"{n} stage{'s' if n > 1 else ''}: highest discharge {_temp_text(T, job)} "
-                          f"({'within' if T <= limit else 'above'} the limit)" for n, T in tried)
-        why = (f"Fewest stages that keep every discharge temperature at or below {st.T_max.entered}: {N}. "
-               f"Trials with equal stage ratios: {steps}.")
-        info = {"leg": leg.name, "stages": N, "rule": "fewest stages under the discharge-temperature limit",
+        why = Finding("staging.fewest", {"limit": limit, "entered": st.T_max.entered, "stages": N,
+                                         "trials": tuple(tried)})
+        info = {"leg": leg.name, "stages": N, "rule": "fewest",
                 "limit": {"value": limit, "unit": "K"},
                 "trials": [{"stages": n, "max_discharge_temperature": {"value": T, "unit": "K"}} for n, T in tried]}
     r = next(c for c in legs[0].calcs if c.symbol == "r_stage")
@@ -261,12 +250,6 @@ def _staged(job, ctx, leg, st: Staging, i, s, P_out, eta_p, eta_s, eta_m) -> tup
 
 def _with(res: LegResult, **kw) -> LegResult:
     return dataclasses.replace(res, **kw)
-
-
-def _temp_text(T: float, job) -> str:
-    """A temperature for a sentence of the report, in the job's unit system."""
-    v, u = display(T, "K", job.units)
-    return f"{v:.4g} {u}"
 
 
 def _totals(legs: list[LegResult]) -> tuple[Calc, ...]:
@@ -280,7 +263,7 @@ def _totals(legs: list[LegResult]) -> tuple[Calc, ...]:
         return [(leg, leg.quantities[key]) for leg in legs if key in leg.quantities
                 and (leg.quantities[key].value > 0 if positive else leg.quantities[key].value < 0)]
 
-    def total(sym: str, note: str, items, negate: bool) -> None:
+    def total(sym: str, note: str | Finding, items, negate: bool) -> None:
         if not items:
             return
         names = {f"x{k}": Term(f"{c.symbol} ({leg.name})", c.value, c.unit) for k, (leg, c) in enumerate(items)}
@@ -291,21 +274,22 @@ def _totals(legs: list[LegResult]) -> tuple[Calc, ...]:
         out.append(Calc(sym, -value if negate else value, "W", eq, "flow.total", names, note=note))
 
     comp, exp = pick("power", True), pick("power", False)
-    total("ΣP_comp", "total compressor gas power", comp, False)
-    total("ΣP_out", "total expander gas power output", exp, True)
-    total("ΣQ̇_cool", "total cooling duty (heat removed from the gas)", pick("duty", False), True)
-    total("ΣQ̇_heat", "total heating duty (heat added to the gas)", pick("duty", True), False)
-    for group, sym, what, negate in ((comp, "ΣP_shaft", "total compressor shaft power", False),
-                                     (exp, "ΣP_{shaft,out}", "total expander shaft power output", True)):
+    total("ΣP_comp", "total.comp_power", comp, False)
+    total("ΣP_out", "total.exp_power", exp, True)
+    total("ΣQ̇_cool", "total.cooling", pick("duty", False), True)
+    total("ΣQ̇_heat", "total.heating", pick("duty", True), False)
+    for group, sym, what, negate in ((comp, "ΣP_shaft", "total.comp_shaft", False),
+                                     (exp, "ΣP_{shaft,out}", "total.exp_shaft", True)):
         shaft = [(leg, leg.quantities["shaft_power"]) for leg, _ in group if "shaft_power" in leg.quantities]
         missing = [leg.name for leg, _ in group if "shaft_power" not in leg.quantities]
+        note: str | Finding = what
         if shaft and missing:
-            what += f" — {PARTIAL} no mechanical efficiency for {', '.join(missing)}, not included"
-        total(sym, what, shaft, negate)
+            note = Finding(PARTIAL, {"total": what, "missing": tuple(missing)})
+        total(sym, note, shaft, negate)
     return tuple(out)
 
 
-def _phase_warnings(ctx: Ctx, label: str, states: list[State], check_all: bool, system: str) -> list[str]:
+def _phase_warnings(ctx: Ctx, label: Finding, states: list[State], check_all: bool) -> list[Finding]:
     """Warnings for states in or near the two-phase region: pure fluids against the saturation
     temperature, mixtures against the dew temperature of the phase envelope."""
     eos = ctx.eos
@@ -313,9 +297,9 @@ def _phase_warnings(ctx: Ctx, label: str, states: list[State], check_all: bool, 
         return []
     liquid = [s for s in states if s.phase in ("two-phase", "liquid", "supercritical liquid")]
     pick = liquid or (states if (eos.mixture or check_all) else [states[0], states[-1]])
-    return phase_warnings(eos.dew_temperature, label, pick, system, NEAR_DEW_K, "dew temperature")
+    return phase_warnings(eos.dew_temperature, label, pick, NEAR_DEW_K, "dew")
 
 
-def _problem_at(job: Job, inp: Input, found: str, valid: str = "") -> JobError:
+def _problem_at(job: Job, inp: Input, f: Finding) -> JobError:
     """A JobError at an input's line and column."""
-    return JobError([job.problem_at(inp, found, valid)])
+    return JobError([problem(job, f, at=inp)])

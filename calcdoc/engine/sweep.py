@@ -12,6 +12,7 @@ import math
 
 from ..errors import JobError, PhysicsError
 from ..job.model import Job
+from ..job.quantities import series_name
 from ..job.vary import at_point, point_jobs
 from .checks import evaluate, locations
 from .results import q as qjson
@@ -32,14 +33,14 @@ def with_sweep(job: Job, results, compute):
             res = compute(pj)
             chk = evaluate(pj, res)
         except (JobError, PhysicsError) as exc:
-            msg = "; ".join(p.found for p in exc.problems) if isinstance(exc, JobError) else str(exc)
-            raise JobError([at_point(job, k, msg, "narrow the sweep to values this job can be computed at")]) from None
+            msg = tuple(p.found for p in exc.problems) if isinstance(exc, JobError) else exc
+            raise JobError([at_point(job, k, msg)]) from None
         inp = next(i for i in pj.inputs if i.path == sw.value_path)
         points.append({"entered": entered, "value": qjson(inp.si, inp.unit)})
         for f in sw.follow:
             for place, calc in locations(pj, res, f.quantity, f.at, f.where, f.path):
                 key = (f.quantity.name, place)
-                s = series.setdefault(key, {"name": f"{f.quantity.title} at {place}", "quantity": f.quantity.name,
+                s = series.setdefault(key, {"name": series_name(f.quantity.title, place), "quantity": f.quantity.name,
                                             "at": place, "unit": calc.unit, "values": [None] * n})
                 s["values"][k] = calc.value if math.isfinite(calc.value) else None
         for c in chk:

@@ -102,7 +102,7 @@ class _Validator(Reader):
         legs = job.legs
         if job.system == "flow":
             opts = read_options(self, [(leg, self.option_nodes[leg.path]) for leg in legs], self._locate)
-            legs = tuple(dataclasses.replace(leg, options=o) for leg, o in zip(legs, opts))
+            legs = tuple(dataclasses.replace(leg, options=o) for leg, o in zip(legs, opts, strict=True))
         places = Places(legs)
         limits = read_limits(self, self.seq(tree.value.get("limits")), job.system, places)
         sweep = read_sweep(self, tree, job.system, places, self.inputs)

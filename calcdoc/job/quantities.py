@@ -10,8 +10,8 @@ from dataclasses import dataclass
 
 from .. import units
 
-__all__ = ["ALIASES", "QUANTITIES", "REVERSIBLE", "SIGNED", "Quantity", "applies", "applies_text",
-           "quantity_named", "quantity_problem"]
+__all__ = ["ALIASES", "QUANTITIES", "REVERSIBLE", "SIGNED", "Quantity", "applies", "applies_text", "place_text",
+           "quantity_named", "quantity_problem", "series_name"]
 
 BOTH = ("closed", "flow")
 
@@ -152,3 +152,22 @@ def quantity_problem(q: Quantity | None, name: str, system: str) -> tuple[str, s
         return (f"{q.name} is a {other} quantity, and this job is a {'steady-flow' if system == 'flow' else 'closed'} system",
                 f"valid for a {system} system: {', '.join(n for n, x in QUANTITIES.items() if system in x.systems)}")
     return None
+
+
+def place_text(kind: str, leg: str = "", label: str = "", count: int = 0) -> str:
+    """The name of a place a quantity is taken at, as checks and sweeps label it: ``state 2``,
+    ``Stage 1 (end, state 2)``, ``train``, ``state 3, governing of 4``."""
+    if kind == "state":
+        return f"state {label}"
+    if kind == "leg_end":
+        return f"{leg} (end, state {label})"
+    if kind == "train":
+        return "train"
+    if kind == "governing":
+        return f"{leg}, governing of {count}"
+    return leg
+
+
+def series_name(title: str, place: str) -> str:
+    """The name of a followed result of a sweep."""
+    return f"{title} at {place}"

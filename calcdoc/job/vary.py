@@ -4,8 +4,9 @@ from __future__ import annotations
 
 from collections.abc import Iterator
 
-from ..errors import JobError, Problem
+from ..errors import JobError, PhysicsError, Problem
 from .jobfile import loads
+from .messages import found_text
 from .model import Job
 
 __all__ = ["point_jobs", "with_text"]
@@ -27,7 +28,7 @@ def point_jobs(job: Job) -> Iterator[tuple[int, str, Job]]:
     sw = job.sweep
     if sw is None:
         return
-    for k, (yaml_text, entered) in enumerate(zip(sw.points, sw.entered)):
+    for k, (yaml_text, entered) in enumerate(zip(sw.points, sw.entered, strict=True)):
         try:
             pj = with_text(job, sw.span, yaml_text, sw.cut)
         except JobError as exc:
@@ -35,9 +36,14 @@ def point_jobs(job: Job) -> Iterator[tuple[int, str, Job]]:
         yield k, entered, pj
 
 
-def at_point(job: Job, k: int, found: str, valid: str) -> Problem:
-    """A problem of sweep point k, located at the value the point came from."""
+def at_point(job: Job, k: int, found, valid: str = "narrow the sweep to values this job can be computed at") -> Problem:
+    """A problem of sweep point k, located at the value the point came from; ``found`` is text, the texts of
+    the point's own problems, or a physics error."""
     sw = job.sweep
     assert sw is not None
     path, line, col = sw.sources[k]
+    if isinstance(found, PhysicsError):
+        found = found_text(found, job.units)
+    elif isinstance(found, tuple):
+        found = "; ".join(found)
     return Problem(job.name, line, col, path, f"sweep point {k + 1} ({sw.entered[k]}): {found}", valid)

@@ -3,6 +3,8 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 
+from ..errors import Finding
+
 
 @dataclass(frozen=True)
 class Term:
@@ -18,6 +20,8 @@ class Calc:
     """A value with its symbol, unit, equation and method.
 
     ``equation`` is the right-hand side in symbols, with every input written as ``{name}`` where
+    ``name`` is a key of ``inputs`` (an equation stated in words is a code starting with "~", worded by the
+    report, for example ``~v_on_path``); where
     ``name`` is a key of ``inputs``; the report typesets it once with symbols and once with the
     numbers put in. ``method`` is an id in :mod:`calcdoc.methods`, whose entry gives the citation.
     ``note`` says which form was used where there is a choice (for example the n → 1 form).
@@ -29,7 +33,7 @@ class Calc:
     equation: str
     method: str
     inputs: dict[str, Term] = field(default_factory=dict)
-    note: str = ""
+    note: str | Finding = ""     # a note code (its words are the report's), or a code with values
     difference: bool = False   # a temperature difference (shown in K or °R, never °C/°F)
 
     def as_json(self) -> dict:

@@ -9,8 +9,8 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
+from ..errors import Finding, PhysicsError
 from .calc import Calc, Term
-from ..errors import PhysicsError
 from .gas import Gas, State
 
 __all__ = ["LegResult", "Target", "closed_leg", "n_from_states", "polytropic_work"]
@@ -37,7 +37,7 @@ class LegResult:
     calcs: tuple[Calc, ...]       # every step, in order, for the report
     path: tuple[State, ...]       # states along the path, start to end
     warnings: tuple[str, ...] = ()
-    facts: tuple[str, ...] = ()   # plain statements about the leg (formula chosen, n derived)
+    facts: tuple[Finding, ...] = ()   # statements about the leg (formula chosen, n derived), as codes
 
 
 def polytropic_work(P1V1: float, r: float, n: float) -> float:
@@ -61,7 +61,7 @@ def _s(name: str, i: int) -> str:
     return f"{name}_{i}"
 
 
-def _solve(f, x0: float, step: float = 0.05, span: float = 12.0, what: str = "") -> float:
+def _solve(f, x0: float, step: float = 0.05, span: float = 12.0, target: dict | None = None) -> float:
     """Root of f(x) near x0: expand a bracket both ways, then bisect-secant (Illinois) to 1e-13."""
     f0 = f(x0)
     if f0 == 0.0:
@@ -83,7 +83,7 @@ def _solve(f, x0: float, step: float = 0.05, span: float = 12.0, what: str = "")
             break
         d *= 1.6
     if a is None:
-        raise PhysicsError(f"no state on this path reaches the end target{(' ' + what) if what else ''}")
+        raise PhysicsError("path.no_target", target=target or {})
     side = 0
     for _ in range(200):
         c = (a * fb - b * fa) / (fb - fa)
@@ -170,16 +170,16 @@ def _end_state_calcs(gas: Gas, process: str, i: int, s1: State, s2: State, m: fl
             given.append(Calc(sym, val, unit, "{x}", "path.constant", {"x": Term(_s(prop, i), getattr(s1, prop), unit)}))
         elif prop == "v" and "v" in kinds:
             given.append(Calc(sym, val, unit, "{V} / {m}", "state.specific_volume",
-                              {"V": Term(_s("V", j), val * m, "m**3"), "m": Term("m", m, "kg")}, note="end target"))
+                              {"V": Term(_s("V", j), val * m, "m**3"), "m": Term("m", m, "kg")}, note="end_target"))
         elif prop in kinds:
-            given.append(Calc(sym, val, unit, "", "input", note="end target"))
+            given.append(Calc(sym, val, unit, "", "input", note="end_target"))
         else:
             if process == "isentropic":
                 pair = ("P", "s") if "P" in kinds else ("v", "s") if "v" in kinds else ("P", "s")
             else:
                 pair = tuple(x for x in ("P", "T", "v") if x != prop)
             out.append(Calc(sym, val, unit, f"{prop}({pair[0]}_{j}, {pair[1]}_{j})", gas.eos_method,
-                            note="from the equation of state"))
+                            note="from_eos"))
     if "v" not in kinds or process == "isochoric":
         out.append(Calc(_s("V", j), s2.v * m, "m**3", "{m}·{v}", "state.volume",
                         {"m": Term("m", m, "kg"), "v": Term(_s("v", j), s2.v, "m**3/kg")}))
@@ -192,7 +192,7 @@ def _heat_first_law(i: int, dU: float, W: float) -> Calc:
 
 
 def n_from_states(i: int, s1: State, s2: State, method: str = "path.polytropic_n",
-                  note: str = "equivalent polytropic exponent between the end states") -> Calc | None:
+                  note: str = "n_equivalent") -> Calc | None:
     """The polytropic exponent joining states i and i + 1, n = ln(P2/P1)/ln(v1/v2); None where P or v is
     the same at both ends (no exponent joins them)."""
     j = i + 1
@@ -214,10 +214,9 @@ def _geom(a: float, b: float, k: int = PATH_POINTS) -> list[float]:
 def _one(targets: list[Target], allowed: str, process: str) -> Target:
     t = targets[0]
     if len(targets) != 1 or t.kind not in allowed:
-        names = {"P": "pressure", "T": "temperature", "v": "volume"}
-        raise PhysicsError(f"a {process} leg cannot reach an end {names[t.kind]} target "
-                           f"({'the ' + names[t.kind] + ' stays constant' if t.kind not in allowed else 'one target only'}); "
-                           f"give one of: {', '.join(names[k] for k in allowed)}")
+        keys = {"P": "pressure", "T": "temperature", "v": "volume"}      # the end-target keys of the job file
+        raise PhysicsError("leg.target_not_reachable" if t.kind not in allowed else "leg.one_target", process=process,
+                           target=keys[t.kind], allowed=", ".join(keys[k] for k in allowed))
     return t
 
 
@@ -234,18 +233,17 @@ def _polytropic(gas, name, i, s1, m, targets, n):
         s2 = gas.state_PT(tP.value, other.value) if other.kind == "T" else gas.state_Pv(tP.value, other.value)
         nc = n_from_states(i, s1, s2)
         if nc is None:
-            raise PhysicsError("the measured end state has the start pressure or volume, so no polytropic exponent "
-                               "joins the two states; use an isobaric or isochoric leg")
+            raise PhysicsError("polytropic.measured_same_end")
         n = nc.value
         steps.append(nc)
-        facts.append(f"n = {n:.6g} derived from the measured end state.")
+        facts.append(Finding("closed.n_derived", {"n": n}))
         ncalc = nc
     else:
         t = targets[0]
         nterm = Term("n", n, "")
         if t.kind == "P":
             if n == 0.0:
-                raise PhysicsError("with n = 0 the pressure stays constant, so an end pressure cannot be reached")
+                raise PhysicsError("polytropic.n0_pressure")
             v2 = v1 * (P1 / t.value) ** (1.0 / n)
             steps.append(Calc(_s("v", j), v2, "m**3/kg", "{v1}·({P1}/{P2})^(1/{n})", "path.polytropic",
                               {"v1": Term(_s("v", i), v1, "m**3/kg"), "P1": Term(_s("P", i), P1, "Pa"),
@@ -261,8 +259,7 @@ def _polytropic(gas, name, i, s1, m, targets, n):
             T2 = t.value
             if gas.model == "ideal":
                 if abs(n - 1.0) < 1e-12:
-                    raise PhysicsError("with n = 1 an ideal gas keeps its temperature, so an end temperature cannot "
-                                       "be reached")
+                    raise PhysicsError("polytropic.n1_temperature")
                 v2 = v1 * (s1.T / T2) ** (1.0 / (n - 1.0))
                 steps.append(Calc(_s("v", j), v2, "m**3/kg", "{v1}·({T1}/{T2})^(1/({n} − 1))", "path.polytropic",
                                   {"v1": Term(_s("v", i), v1, "m**3/kg"), "T1": Term(_s("T", i), s1.T, "K"),
@@ -271,10 +268,10 @@ def _polytropic(gas, name, i, s1, m, targets, n):
                 def f(x):
                     v = v1 * math.exp(x)
                     return gas.state_Pv(P1 * (v1 / v) ** n, v).T - T2
-                v2 = v1 * math.exp(_solve(f, 0.0, what=f"T = {T2:.6g} K with n = {n:.6g}"))
-                steps.append(Calc(_s("v", j), v2, "m**3/kg", "v such that T(P_1·(v_1/v)^n, v) = T_2", "path.polytropic",
+                v2 = v1 * math.exp(_solve(f, 0.0, target={"T": T2, "n": n}))
+                steps.append(Calc(_s("v", j), v2, "m**3/kg", "~v_on_path", "path.polytropic",
                                   {"T2": Term(_s("T", j), T2, "K"), "n": nterm},
-                                  note="solved on the equation of state along P·v^n = const"))
+                                  note="solved_on_path"))
             s2 = gas.state_Pv(P1 * (v1 / v2) ** n, v2)
         ncalc = Calc("n", n, "", "{n}", "input", {"n": nterm})
     # boundary work
@@ -286,8 +283,8 @@ def _polytropic(gas, name, i, s1, m, targets, n):
                  "{P1}·{V1}·ln({V2}/{V1})", "work.polytropic_n1",
                  {"P1": Term(_s("P", i), P1, "Pa"), "V1": Term(_s("V", i), v1 * m, "m**3"),
                   "V2": Term(_s("V", j), s2.v * m, "m**3"), "n": Term("n", n, "")},
-                 note="form accurate for n near 1 (no cancellation)")
-        facts.append("Boundary work by the form that stays accurate for n near 1.")
+                 note="n1_form")
+        facts.append(Finding("closed.n1_form"))
     else:
         W = Calc("W", Wv, "J", "({P2}·{V2} − {P1}·{V1})/(1 − {n})", "work.polytropic",
                  {"P2": Term(_s("P", j), s2.P, "Pa"), "V2": Term(_s("V", j), s2.v * m, "m**3"),
@@ -307,10 +304,10 @@ def _isentropic(gas, name, i, s1, m, targets, n):
         s2 = gas.state_vs(t.value, s1.s)
     else:
         x = _solve(lambda x: gas.state_Ps(s1.P * math.exp(x), s1.s).T - t.value, 0.0,
-                   what=f"T = {t.value:.6g} K at constant entropy")
+                   target={"T": t.value})
         s2 = gas.state_Ps(s1.P * math.exp(x), s1.s)
     steps = [Calc(_s("s", j), s1.s, "J/(kg*K)", "{s1}", "work.adiabatic", {"s1": Term(_s("s", i), s1.s, "J/(kg*K)")},
-                  note="reversible and adiabatic: entropy constant")]
+                  note="isentropic")]
     dU = m * (s2.u - s1.u)
     W = Calc("W", -dU, "J", "−{dU}", "work.adiabatic", {"dU": Term("ΔU", dU, "J")})
     Q = Calc("Q", 0.0, "J", "0", "work.adiabatic")
@@ -338,8 +335,7 @@ def _isothermal(gas, name, i, s1, m, targets, n):
                  {"m": Term("m", m, "kg"), "T": Term(_s("T", i), s1.T, "K"),
                   "s2": Term(_s("s", j), s2.s, "J/(kg*K)"), "s1": Term(_s("s", i), s1.s, "J/(kg*K)")})
         W = Calc("W", Qv - dU, "J", "{Q} − {dU}", "firstlaw.work", {"Q": Term("Q", Qv, "J"), "dU": Term("ΔU", dU, "J")})
-        facts.append("Real gas: heat from T·ΔS along the isotherm, work from the first law "
-                     "(P·V is not constant for a real gas).")
+        facts.append(Finding("closed.isothermal_real"))
     path = [gas.state_Tv(s1.T, v) for v in _geom(s1.v, s2.v)[1:-1]]
     return _finish(gas, name, "isothermal", i, s1, s2, m, W, Q, n_from_states(i, s1, s2), [], [s1, *path, s2], facts,
                    targets)

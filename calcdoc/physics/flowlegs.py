@@ -12,11 +12,11 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from .flowpath import Eos, Point, TwoPhaseError, polytropic_path, solve_T
+from ..errors import Finding, PhysicsError
 from .calc import Calc, Term
-from ..errors import PhysicsError
-from .gas import R_U, Gas, State
 from .closed import LegResult, n_from_states
+from .flowpath import Eos, Point, TwoPhaseError, polytropic_path, solve_T
+from .gas import R_U, Gas, State
 
 __all__ = ["Ctx", "MeasuredEndError", "machine", "heat_exchanger", "throttle", "reversible"]
 
@@ -24,10 +24,6 @@ __all__ = ["Ctx", "MeasuredEndError", "machine", "heat_exchanger", "throttle", "
 class MeasuredEndError(PhysicsError):
     """A measured end temperature that no adiabatic machine of this kind can reach (the engine points
     at the leg's end temperature)."""
-
-    def __init__(self, found: str, valid: str):
-        self.valid = valid
-        super().__init__(found)
 
 PATH_POINTS = 8
 
@@ -80,18 +76,16 @@ def machine(ctx: Ctx, name: str, process: str, i: int, s1: State, P2: float, eta
     j = i + 1
     comp = process == "compressor"
     if s1.phase in ("liquid", "two-phase", "supercritical liquid"):
-        raise PhysicsError(f"the {process} inlet is {s1.phase} (P = {s1.P / 1e3:.5g} kPa, T = {s1.T - 273.15:.4g} °C): "
-                           "a gas machine stage needs gas at its inlet, and liquid or wet compression and expansion "
-                           "are outside this model; raise the inlet temperature or lower its pressure")
+        raise PhysicsError("machine.wet_inlet", process=process, phase=s1.phase, P=s1.P, T=s1.T)
     r = P2 / s1.P
     calcs = [Calc("r", r, "", "{P2}/{P1}", "flow.ratio", {"P2": _t("P", j, P2, "Pa"), "P1": _t("P", i, s1.P, "Pa")})]
-    facts: list[str] = []
+    facts: list[Finding] = []
     fn = _machine_ideal if ctx.ideal else _machine_real
     s2, s2s, eta_p, eta_s, path, more = fn(ctx, comp, i, s1, P2, r, eta_p, eta_s, T2_measured, facts)
     calcs += more
     gas = ctx.gas
     calcs += _h_calcs(gas, [(str(i), s1), (str(j), s2)])
-    calcs.append(Calc(f"h_{j}s", s2s.h, "J/kg", f"h(P_{j}, s_{i})", gas.eos_method, note="isentropic end state"))
+    calcs.append(Calc(f"h_{j}s", s2s.h, "J/kg", f"h(P_{j}, s_{i})", gas.eos_method, note="isentropic_end"))
     w = s2.h - s1.h
     Hs = s2s.h - s1.h
     W = Calc("w_in", w, "J/kg", "{h2} − {h1}", "flow.firstlaw_adiabatic",
@@ -101,7 +95,7 @@ def machine(ctx: Ctx, name: str, process: str, i: int, s1: State, P2: float, eta
     Hp = eta_p.value * w if comp else w / eta_p.value
     HP = Calc("H_p", Hp, "J/kg", "{eta}·{w}" if comp else "{w}/{eta}", "flow.head_polytropic",
               {"eta": Term("η_p", eta_p.value, ""), "w": Term("w_in", w, "J/kg")},
-              note="polytropic head ∫v·dP along the path of constant η_p")
+              note="polytropic_head")
     calcs += [W, HS, HP]
     n = _n_calc(i, s1, s2)
     if n is not None:
@@ -117,13 +111,13 @@ def machine(ctx: Ctx, name: str, process: str, i: int, s1: State, P2: float, eta
 
 def _power(ctx: Ctx, q: dict, calcs: list[Calc], w: float, comp: bool, eta_m: float | None) -> None:
     P = Calc("P_gas", ctx.m_dot * w, "W", "{m}·{w}", "flow.power", _flow_terms(ctx.m_dot, w))
-    D = Calc("Q̇", 0.0, "W", "0", "flow.firstlaw_adiabatic", note="adiabatic machine: no heat exchanged")
+    D = Calc("Q̇", 0.0, "W", "0", "flow.firstlaw_adiabatic", note="adiabatic_machine")
     calcs += [P, D]
     q["power"], q["duty"] = P, D
     if eta_m is not None:
         ins = {"P": Term("P_gas", P.value, "W"), "eta": Term("η_m", eta_m, "")}
         S = Calc("P_shaft", P.value / eta_m if comp else P.value * eta_m, "W", "{P}/{eta}" if comp else "{P}·{eta}",
-                 "flow.shaft_power", ins, note="driver delivers" if comp else "shaft receives")
+                 "flow.shaft_power", ins, note="driver_delivers" if comp else "shaft_receives")
         calcs.append(S)
         q["shaft_power"] = S
 
@@ -169,7 +163,7 @@ def _machine_ideal(ctx, comp, i, s1, P2, r, eta_p, eta_s, T2m, facts):
     else:
         epc = Calc("η_p", eta_p, "", "{e}", "input", {"e": Term("η_p", eta_p, "")})
     calcs.append(eps)
-    facts.append("Ideal gas with constant specific heats: closed-form end temperatures.")
+    facts.append(Finding("flow.ideal_closed_form"))
     path = [s1] + [gas.state_PT(P, T1 * (P / s1.P) ** (math.log(T2 / T1) / math.log(r))) for P in _path_P(s1.P, P2)] + [s2]
     return s2, s2s, epc, eps, path, calcs
 
@@ -177,24 +171,15 @@ def _machine_ideal(ctx, comp, i, s1, P2, r, eta_p, eta_s, T2m, facts):
 def _check_measured(comp: bool, P2: float, T1: float, T2: float, T2s: float) -> None:
     """Refuse a measured end temperature that would need an efficiency outside (0, 1]: a compressor
     discharges above its isentropic end temperature; an expander ends between it and its inlet."""
-    c = lambda T: f"{T - 273.15:.4g} °C"   # noqa: E731
     if comp and T2 < T2s:
-        raise MeasuredEndError(
-            f"the measured end temperature {c(T2)} is below the isentropic end temperature T2s = {c(T2s)} at "
-            f"{P2 / 1e3:.6g} kPa: it would need an efficiency above 1",
-            f"a compressor's end temperature T2 must be above the isentropic T2s = {c(T2s)}; check the measured "
-            "temperature and the end pressure")
+        raise MeasuredEndError("measured.compressor_below_isentropic", T2=T2, T2s=T2s, P2=P2)
     if not comp and not (T2s <= T2 < T1):
-        where = "below the isentropic end temperature" if T2 < T2s else "at or above the inlet temperature"
-        raise MeasuredEndError(
-            f"the measured end temperature {c(T2)} is {where} (T2s = {c(T2s)} at {P2 / 1e3:.6g} kPa, "
-            f"T1 = {c(T1)}): no efficiency from 0 to 1 gives it",
-            f"an expander's end temperature lies in T2s ≤ T2 ≤ T1, from {c(T2s)} to below {c(T1)}; check the "
-            "measured temperature and the end pressure")
+        raise MeasuredEndError("measured.expander_below_isentropic" if T2 < T2s else "measured.expander_above_inlet",
+                               T2=T2, T2s=T2s, P2=P2, T1=T1)
 
 
 def _isentropic_end(ctx: Ctx, s1: State, P2: float, T_guess: float) -> Point:
-    return solve_T(ctx.eos, P2, T_guess, "s", s1.s, f"the start entropy s = {s1.s:.6g} J/(kg K)")
+    return solve_T(ctx.eos, P2, T_guess, "s", s1.s, {"s": s1.s})
 
 
 def _machine_real(ctx, comp, i, s1, P2, r, eta_p, eta_s, T2m, facts):
@@ -208,10 +193,9 @@ def _machine_real(ctx, comp, i, s1, P2, r, eta_p, eta_s, T2m, facts):
     if eta_p is not None:
         p2, path, steps = polytropic_path(eos, p1, P2, eta_p)
         T2 = p2.state.T
-        calcs.append(Calc(f"T_{j}", T2, "K", "T at {P2} on the path v·dP = {eta}·dh" if comp else
-                          "T at {P2} on the path dh = {eta}·v·dP", "flow.direct",
+        calcs.append(Calc(f"T_{j}", T2, "K", "~T_on_path_compressor" if comp else "~T_on_path_expander", "flow.direct",
                           {"P2": _t("P", j, P2, "Pa"), "eta": Term("η_p", eta_p, "")},
-                          note=f"integrated in ln P with the equation of state: {steps} Runge–Kutta steps"))
+                          note=Finding("rk_steps", {"steps": steps})))
         guess = s1.T * (T2 / s1.T) ** (eta_p if comp else 1.0 / eta_p)
         p2s = _isentropic_end(ctx, s1, P2, guess)
         eps = None
@@ -225,20 +209,19 @@ def _machine_real(ctx, comp, i, s1, P2, r, eta_p, eta_s, T2m, facts):
                               {"h1": _t("h", i, s1.h, "J/kg"), "h2s": Term(f"h_{j}s", p2s.state.h, "J/kg"),
                                "eta": Term("η_s", eta_s, "")}))
             T_guess = s1.T + (p2s.state.T - s1.T) / (eta_s if comp else 1 / eta_s)
-            p2 = solve_T(eos, P2, T_guess, "h", h2, f"h = {h2:.6g} J/kg")
+            p2 = solve_T(eos, P2, T_guess, "h", h2, {"h": h2})
             calcs.append(Calc(f"T_{j}", p2.state.T, "K", f"T(P_{j}, h_{j})", "eos.real"))
         else:
             _check_measured(comp, P2, s1.T, T2m, p2s.state.T)
             p2 = eos.pt(P2, T2m)
             calcs.append(Calc(f"T_{j}", T2m, "K", "{T2}", "input", {"T2": _t("T", j, T2m, "K")}, note="measured"))
         eta_p, path, steps = _eta_p_from_end(ctx, comp, p1, p2, p2s)
-        calcs.append(Calc("η_p", eta_p, "", "η_p such that the path v·dP = η_p·dh from state {i} reaches {T2} at {P2}"
-                          if comp else "η_p such that the path dh = η_p·v·dP from state {i} reaches {T2} at {P2}",
+        calcs.append(Calc("η_p", eta_p, "", "~eta_p_compressor" if comp else "~eta_p_expander",
                           "flow.direct", {"i": Term("i", float(i), ""), "T2": _t("T", j, p2.state.T, "K"),
                                           "P2": _t("P", j, P2, "Pa")},
-                          note=f"secant iteration on η_p, each trial integrated in ln P ({steps} steps in the last)"))
+                          note=Finding("eta_p_secant", {"steps": steps})))
     s2, s2s = p2.state, p2s.state
-    calcs.append(Calc(f"T_{j}s", s2s.T, "K", f"T(P_{j}, s = s_{i})", "eos.real", note="isentropic end state"))
+    calcs.append(Calc(f"T_{j}s", s2s.T, "K", f"T(P_{j}, s = s_{i})", "eos.real", note="isentropic_end"))
     if eta_s is None:
         w, Hs = s2.h - s1.h, s2s.h - s1.h
         es = Hs / w if comp else w / Hs
@@ -250,8 +233,7 @@ def _machine_real(ctx, comp, i, s1, P2, r, eta_p, eta_s, T2m, facts):
     calcs.append(eps)
     epc = next((c for c in calcs if c.symbol == "η_p"), None) or Calc("η_p", eta_p, "", "{e}", "input",
                                                                        {"e": Term("η_p", eta_p, "")})
-    facts.append(f"Real gas: the path of constant polytropic efficiency is integrated with the equation of state "
-                 f"({gas.flashes - f0} equation-of-state evaluations for this stage).")
+    facts.append(Finding("flow.real_path", {"flashes": gas.flashes - f0}))
     return s2, s2s, epc, eps, path, calcs
 
 
@@ -287,11 +269,9 @@ def _eta_p_from_end(ctx: Ctx, comp: bool, p1: Point, p2: Point, p2s: Point) -> t
         b = c
         gb, path_b, steps_b = g(b)
     else:
-        raise PhysicsError("the polytropic efficiency of the measured end state did not converge")
+        raise PhysicsError("measured.eta_p_not_converged")
     if b > 1.0 + 1e-9 or abs(gb) > 1e-3:
-        raise PhysicsError(f"no polytropic efficiency up to 1 reaches the end state (T = {s2.T:.6g} K): the end "
-                           + ("temperature is at or below the isentropic one" if comp else
-                              "temperature is outside T2s ≤ T2 ≤ T1 (isentropic end to inlet)"))
+        raise PhysicsError("measured.no_eta_p_compressor" if comp else "measured.no_eta_p_expander", T=s2.T)
     return b, path_b, steps_b
 
 
@@ -316,10 +296,9 @@ def _schultz(i, s1, s2, s2s, Hs, w, eta_p, comp, n, calcs, facts) -> dict[str, C
              {"H": Term("H_p,S", Hp, "J/kg"), "w": Term("w_in", w, "J/kg")})
     D = Calc("Δη_p", 100.0 * (e - eta_p), "", "100·({eS} − {e})", "schultz.head",
              {"eS": Term("η_p,S", e, ""), "e": Term("η_p", eta_p, "")},
-             note="percentage points: the code method (Schultz) against the direct integration")
+             note="schultz_points")
     calcs += [NS, F, HP, E, D]
-    facts.append(f"Schultz (1962) method, as used by ASME PTC 10, from the same end states: f = {f:.5f}, "
-                 f"η_p = {e:.5f}, which differs from the direct integration by {100 * (e - eta_p):+.3f} points.")
+    facts.append(Finding("flow.schultz", {"f": f, "eta": e, "points": 100 * (e - eta_p)}))
     return {"head_schultz": HP, "eta_p_schultz": E, "f_schultz": F, "n_s": NS}
 
 
@@ -338,8 +317,8 @@ def heat_exchanger(ctx: Ctx, name: str, process: str, i: int, s1: State, P2: flo
     Q = Calc("q_in", qv, "J/kg", "{h2} − {h1}", "flow.firstlaw_heat",
              {"h2": _t("h", j, s2.h, "J/kg"), "h1": _t("h", i, s1.h, "J/kg")})
     D = Calc("Q̇", ctx.m_dot * qv, "W", "{m}·{w}", "flow.power", _flow_terms(ctx.m_dot, qv, "q_in"),
-             note="negative: heat removed from the gas" if qv < 0 else "")
-    W = Calc("w_in", 0.0, "J/kg", "0", "flow.firstlaw_heat", note="no shaft work")
+             note="heat_removed" if qv < 0 else "")
+    W = Calc("w_in", 0.0, "J/kg", "0", "flow.firstlaw_heat", note="no_shaft_work")
     P = Calc("P_gas", 0.0, "W", "0", "flow.firstlaw_heat")
     calcs += [Q, D]
     return LegResult(name, process, i, s1, s2, {"work_in": W, "duty": D, "power": P, "q_in": Q}, tuple(calcs),
@@ -351,25 +330,25 @@ def throttle(ctx: Ctx, name: str, i: int, s1: State, P2: float) -> LegResult:
     if ctx.ideal:
         s2 = ctx.gas.state_PT(P2, s1.T)
         path = [s1] + [ctx.gas.state_PT(P, s1.T) for P in _path_P(s1.P, P2, 4)] + [s2]
-        note = "ideal gas: enthalpy depends on temperature only, so the temperature does not change"
+        note = "throttle_ideal"
     elif ctx.gas.pure:
         # pure fluid: the HmassP flash gives single-phase and two-phase outlets alike
         path = [s1] + [ctx.gas.state_Ph(P, s1.h) for P in _path_P(s1.P, P2, 4) + [P2]]
         s2 = path[-1]
-        note = "T at P_2 with h_2 = h_1 (equation of state, (h, P) flash)"
+        note = "throttle_ph_flash"
     else:
         path, T = [s1], s1.T
         for P in _path_P(s1.P, P2, 4) + [P2]:
-            p = solve_T(ctx.eos, P, T, "h", s1.h, f"the inlet enthalpy h = {s1.h:.6g} J/kg")
+            p = solve_T(ctx.eos, P, T, "h", s1.h, {"h": s1.h})
             T = p.state.T
             path.append(p.state)
         s2 = path[-1]
-        note = "T at P_2 with h_2 = h_1 (equation of state)"
+        note = "throttle_eos"
     wet = s2.quality is not None
     if wet:
-        note = "saturation temperature at P_2: the outlet is two-phase"
+        note = "throttle_wet"
     calcs = [Calc(f"h_{j}", s1.h, "J/kg", "{h1}", "flow.throttle", {"h1": _t("h", i, s1.h, "J/kg")},
-                  note="adiabatic, no work: enthalpy is conserved"),
+                  note="throttle_h"),
              Calc(f"T_{j}", s2.T, "K", f"T(P_{j}, h_{j})", ctx.gas.eos_method, note=note)]
     dT = Calc("ΔT", s2.T - s1.T, "K", "{T2} − {T1}", "flow.throttle",
               {"T2": _t("T", j, s2.T, "K"), "T1": _t("T", i, s1.T, "K")}, difference=True)
@@ -377,12 +356,11 @@ def throttle(ctx: Ctx, name: str, i: int, s1: State, P2: float) -> LegResult:
     facts_wet = []
     if wet:
         calcs.append(Calc(f"x_{j}", s2.quality, "", f"x(P_{j}, h_{j})", ctx.gas.eos_method,
-                          note="vapour quality: mass fraction of vapour in the two-phase outlet"))
-        facts_wet.append(f"The outlet is two-phase: vapour quality x = {s2.quality:.4f} at the saturation "
-                         f"temperature {s2.T - 273.15:.4g} °C.")
+                          note="quality"))
+        facts_wet.append(Finding("throttle.two_phase", {"x": s2.quality, "T": s2.T}))
     zero_w = Calc("w_in", 0.0, "J/kg", "0", "flow.throttle")
     zero = Calc("Q̇", 0.0, "W", "0", "flow.throttle")
-    facts = [f"Throttle: the temperature changes by {s2.T - s1.T:+.4g} K (Joule–Thomson effect)."] + facts_wet
+    facts = [Finding("throttle.dT", {"dT": s2.T - s1.T})] + facts_wet
     return LegResult(name, "throttle", i, s1, s2, {"work_in": zero_w, "duty": zero,
                                                    "power": Calc("P_gas", 0.0, "W", "0", "flow.throttle"), "dT": dT},
                      tuple(calcs), tuple(path), (), tuple(facts))
@@ -406,18 +384,18 @@ def reversible(ctx: Ctx, name: str, process: str, i: int, s1: State, P2: float, 
         else:
             p1 = ctx.eos.pt(s1.P, s1.T)
             pe, pts, _ = polytropic_path(ctx.eos, p1, P2, 1.0)
-            s2 = solve_T(ctx.eos, P2, pe.state.T, "s", s1.s, "the start entropy").state
+            s2 = solve_T(ctx.eos, P2, pe.state.T, "s", s1.s, {"s": s1.s}).state
             pts = pts[1:-1]
             wv = s2.h - s1.h
             calcs.append(Calc(f"T_{j}", s2.T, "K", f"T(P_{j}, s = s_{i})", "eos.real"))
             calcs += _h_calcs(gas, [(str(i), s1), (str(j), s2)])
             W = Calc("w_in", wv, "J/kg", "{h2} − {h1}", "flow.firstlaw_adiabatic",
-                     {"h2": _t("h", j, s2.h, "J/kg"), "h1": _t("h", i, s1.h, "J/kg")}, note="= ∫v·dP at constant s")
+                     {"h2": _t("h", j, s2.h, "J/kg"), "h1": _t("h", i, s1.h, "J/kg")}, note="isentropic_work")
     elif process == "isothermal":
         if not ctx.ideal and ctx.eos.side(s1.P, s1.T) != ctx.eos.side(P2, s1.T):
             AS = ctx.gas.AS   # the saturation pressure at T_1 lies between the ends
             AS.update(ctx.gas._CP.QT_INPUTS, 1.0, s1.T)
-            raise TwoPhaseError("the isothermal path", AS.p(), s1.T)
+            raise TwoPhaseError(Finding("what.isothermal_path"), AS.p(), s1.T)
         pts = [ctx.state(P, s1.T) for P in _path_P(s1.P, P2)]
         s2 = ctx.state(P2, s1.T)
         if ctx.ideal:
@@ -438,7 +416,7 @@ def reversible(ctx: Ctx, name: str, process: str, i: int, s1: State, P2: float, 
         v2 = s1.v * (s1.P / P2) ** (1.0 / n)
         calcs.append(Calc(f"v_{j}", v2, "m**3/kg", "{v1}·({P1}/{P2})^(1/{n})", "path.polytropic",
                           {**ins, "n": Term("n", n, "")}))
-        pts = [_state_Pv(ctx, P, v, s1) for P, v in zip(_path_P(s1.P, P2), v_at)]
+        pts = [_state_Pv(ctx, P, v, s1) for P, v in zip(_path_P(s1.P, P2), v_at, strict=True)]
         s2 = _state_Pv(ctx, P2, v2, s1)
         if abs(n - 1.0) < 1e-9:
             wv = s1.P * s1.v * math.log(P2 / s1.P)
@@ -466,11 +444,10 @@ def reversible(ctx: Ctx, name: str, process: str, i: int, s1: State, P2: float, 
         calcs.append(nc)
         q["n"] = nc
     return LegResult(name, process, i, s1, s2, q, tuple(calcs), tuple([s1, *pts, s2]), (),
-                     ("Internally reversible steady flow: shaft work in = ∫v·dP along the path; the flow work is "
-                      "−∫v·dP.",))
+                     (Finding("flow.reversible"),))
 
 
 def _state_Pv(ctx: Ctx, P: float, v: float, s1: State) -> State:
     if ctx.ideal:
         return ctx.gas.state_Pv(P, v)
-    return solve_T(ctx.eos, P, s1.T * (P * v) / (s1.P * s1.v), "v", v, f"v = {v:.6g} m3/kg").state
+    return solve_T(ctx.eos, P, s1.T * (P * v) / (s1.P * s1.v), "v", v, {"v": v}).state

@@ -24,7 +24,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from ..errors import PhysicsError
+from ..errors import Finding, PhysicsError
 from .gas import _PHASES, RealGas, State
 
 __all__ = ["Eos", "Point", "TwoPhaseError", "polytropic_path", "solve_T"]
@@ -45,10 +45,9 @@ class TwoPhaseError(PhysicsError):
     """A pure fluid's path enters the two-phase region at the pressure P [Pa], where the saturation
     temperature is T_sat [K]; the engine points at the leg's end target."""
 
-    def __init__(self, what: str, P: float, T_sat: float):
+    def __init__(self, what: Finding, P: float, T_sat: float):
         self.P, self.T_sat = P, T_sat
-        super().__init__(f"{what} enters the two-phase region at P = {P / 1e3:.6g} kPa (saturation temperature "
-                         f"{T_sat - 273.15:.4g} °C at that pressure)")
+        super().__init__("two_phase.enters", what=what, P=P, T_sat=T_sat)
 
 
 @dataclass(frozen=True)
@@ -83,7 +82,7 @@ class Eos:
                 d = self.AS.get_phase_envelope_data()
                 self.envelope = [(float(T), float(P)) for T, P in zip(d.T, d.p) if T > 0 and P > 0]
             except ValueError as exc:   # CoolProp raises ValueError for a failed envelope
-                self.envelope_note = f"the phase envelope of the mixture could not be traced ({str(exc)[:120]})"
+                self.envelope_note = str(exc)[:120]   # CoolProp's reason the envelope could not be traced
         if self.envelope:
             i = max(range(len(self.envelope)), key=lambda k: self.envelope[k][1])
             self.T_cricondenbar, self.P_cricondenbar = self.envelope[i]
@@ -150,7 +149,7 @@ class Eos:
     def pt(self, P: float, T: float) -> Point:
         """The state at (P, T) with cp and (∂v/∂T)_P."""
         if not (P > 0 and T > 0 and math.isfinite(P) and math.isfinite(T)):
-            raise PhysicsError(f"the state P = {P:.6g} Pa, T = {T:.6g} K is not physical")
+            raise PhysicsError("state.unphysical", P=P, T=T)
         key = (P, T)
         if key in self._recent:
             return self._recent[key]
@@ -163,8 +162,8 @@ class Eos:
     def _pt(self, P: float, T: float) -> Point:
         gas = self.gas
         if not (gas.Tmin * 0.999 <= T <= gas.Tmax) or P > gas.pmax:
-            raise PhysicsError(f"the state P = {P / 1e3:.6g} kPa, T = {T:.6g} K is outside the range of the equation "
-                               f"of state ({gas.Tmin:.5g} K to {gas.Tmax:.5g} K, up to {gas.pmax / 1e3:.6g} kPa)")
+            raise PhysicsError("eos.range", state={"P": P, "T": T}, T=T, P=P, Tmin=gas.Tmin, Tmax=gas.Tmax,
+                               pmax=gas.pmax)
         if self.mixture and self.outside_envelope(P, T):
             pt = self._flash(P, T, impose=True)
             if pt is not None:
@@ -173,10 +172,9 @@ class Eos:
         if pt is not None:
             return pt
         dew = self.dew_temperature(P)
-        extra = f"; the dew temperature at this pressure is {dew - 273.15:.4g} °C" if dew else ""
-        raise PhysicsError(f"the equation of state cannot compute the state at P = {P / 1e3:.6g} kPa, "
-                           f"T = {T - 273.15:.5g} °C{extra} (two-phase or unconverged states are not supported "
-                           "on this path)")
+        if dew:
+            raise PhysicsError("eos.path_state_near_dew", P=P, T=T, dew=dew)
+        raise PhysicsError("eos.path_state", P=P, T=T)
 
     def _flash(self, P: float, T: float, impose: bool) -> Point | None:
         AS, CP = self.AS, self.CP
@@ -206,7 +204,7 @@ class Eos:
         return Point(st, cp, vT)
 
 
-def solve_T(eos: Eos, P: float, T0: float, prop: str, target: float, what: str) -> Point:
+def solve_T(eos: Eos, P: float, T0: float, prop: str, target: float, what: dict[str, float]) -> Point:
     """The state at pressure P where ``prop`` ('h', 's' or 'v') equals target, by Newton's method
     in T with the exact slope from the same flash: (∂h/∂T)_P = cp, (∂s/∂T)_P = cp/T, (∂v/∂T)_P.
 
@@ -228,23 +226,23 @@ def solve_T(eos: Eos, P: float, T0: float, prop: str, target: float, what: str) 
             r, slope = st.v - target, p.vT
         if slope <= 0:
             _raise_if_wet(eos, P, prop, target, what)
-            raise PhysicsError(f"no single-phase state at P = {P / 1e3:.6g} kPa gives {what}")
+            raise PhysicsError("eos.no_single_phase", P=P, state=what)
         dT = -r / slope
         if abs(dT) < 1e-7:
             return p
         T = T + max(-0.3 * T, min(0.3 * T, dT))
     _raise_if_wet(eos, P, prop, target, what)
-    raise PhysicsError(f"the state at P = {P / 1e3:.6g} kPa with {what} did not converge")
+    raise PhysicsError("eos.not_converged", P=P, state=what)
 
 
-def _raise_if_wet(eos: Eos, P: float, prop: str, target: float, what: str) -> None:
+def _raise_if_wet(eos: Eos, P: float, prop: str, target: float, what: dict[str, float]) -> None:
     """A pure fluid whose target lies between the saturated liquid and vapour values at P is wet."""
     sat = eos.saturation(P)
     if sat is None:
         return
     T_sat, liq, vap = sat
     if min(liq[prop], vap[prop]) <= target <= max(liq[prop], vap[prop]):
-        raise TwoPhaseError(f"the state with {what}", P, T_sat)
+        raise TwoPhaseError(Finding("what.state", {"state": what}), P, T_sat)
 
 
 def polytropic_path(eos: Eos, p1: Point, P2: float, eta_p: float, rtol: float = STEP_RTOL
@@ -304,7 +302,7 @@ def polytropic_path(eos: Eos, p1: Point, P2: float, eta_p: float, rtol: float = 
             # a stage state lies across the saturation line: halve the step until the path meets it
             if abs(h) < 1e-7 * abs(span):
                 P = math.exp(x)
-                raise TwoPhaseError("the path", P, eos.gas.dew_temperature(P) or T)
+                raise TwoPhaseError(Finding("what.path"), P, eos.gas.dew_temperature(P) or T)
             h *= 0.5
             continue
         T_new = T + h * sum(a * k for a, k in zip(_A[6], ks[:6]))
@@ -322,7 +320,7 @@ def polytropic_path(eos: Eos, p1: Point, P2: float, eta_p: float, rtol: float = 
                 break
         h *= min(4.0, max(0.2, 0.9 * (tol_h / max(err, 1e-300)) ** 0.2))
     else:
-        raise PhysicsError("the polytropic path did not reach its end pressure in 400 steps")
+        raise PhysicsError("path.steps_exhausted", steps=400)
     # the last stage of the last step is evaluated at exactly (ln P2, T2): the end state
     if abs(end.state.P - P2) > 1e-9 * P2:
         end = eos.pt(P2, T)

@@ -4,10 +4,7 @@ from __future__ import annotations
 import difflib
 from functools import lru_cache
 
-__all__ = ["COMMON_FLUIDS", "closest_fluids", "fluid_names", "fluid_names_hint", "known_fluid"]
-
-#: Fluid names offered when nothing closer is found.
-COMMON_FLUIDS = "use a CoolProp fluid name such as Nitrogen, Air, CarbonDioxide, Methane, Hydrogen"
+__all__ = ["closest_fluids", "fluid_names", "known_fluid"]
 
 
 @lru_cache(maxsize=1)
@@ -46,14 +43,3 @@ def closest_fluids(name: str, n: int = 3) -> list[str]:
     known = fluid_names()
     close = difflib.get_close_matches(name, list(known), n=6, cutoff=0.6)
     return list(dict.fromkeys(known[c] for c in close))[:n]
-
-
-def fluid_names_hint(names: list[str]) -> str:
-    """'did you mean ...?' for each unknown name, then the common fluid names."""
-    hints = []
-    for nm in names:
-        if nm and not known_fluid(nm):
-            close = closest_fluids(nm)
-            if close:
-                hints.append(f"for '{nm}' did you mean {' or '.join(repr(c) for c in close)}?")
-    return " ".join(hints) + (" " if hints else "") + COMMON_FLUIDS

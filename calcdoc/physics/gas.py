@@ -56,9 +56,6 @@ class Gas:
     def state_vs(self, v: float, s: float) -> State: raise NotImplementedError
     def state_Ph(self, P: float, h: float) -> State: raise NotImplementedError
 
-    def describe(self) -> str:
-        return self.name
-
     def saturation_curve(self, n: int = 60) -> list[tuple[float, float, float, float]] | None:
         """Points (T, P, v, s) of the saturated liquid and vapour lines, or None if not applicable."""
         return None
@@ -84,7 +81,7 @@ class IdealGas(Gas):
         # 5/3 with room for rounding: a monatomic fluid's k from its equation of state lands a few parts
         # in 1e7 above 5/3 when the EOS and calcdoc differ in the last digits of the gas constant
         if not (1.0 < k <= 5.0 / 3.0 * (1.0 + 1e-6)):
-            raise PhysicsError(f"heat capacity ratio k = {k} is outside (1, 5/3]")
+            raise PhysicsError("gas.k_range", k=k)
         self.name = name
         self.k = k
         self.M = M
@@ -92,12 +89,9 @@ class IdealGas(Gas):
         self.cp = k * self.R / (k - 1.0)
         self.cv = self.R / (k - 1.0)
 
-    def describe(self) -> str:
-        return f"{self.name} as an ideal gas, k = {self.k:.5g}, M = {self.M * 1e3:.5g} g/mol"
-
     def _make(self, P: float, T: float) -> State:
         if not (P > 0 and T > 0 and math.isfinite(P) and math.isfinite(T)):
-            raise PhysicsError(f"state with P = {P:.6g} Pa, T = {T:.6g} K is not physical")
+            raise PhysicsError("state.unphysical", P=P, T=T)
         h = self.cp * (T - T_REF)
         v = self.R * T / P
         return State(P, T, v, h - P * v, h, self.cp * math.log(T / T_REF) - self.R * math.log(P / P_REF), 1.0,
@@ -153,7 +147,7 @@ class RealGas(Gas):
             if mixture:
                 self.AS.set_mole_fractions([x for _, x in mixture])
         except ValueError as exc:
-            raise PhysicsError(f"CoolProp does not know the fluid {'&'.join(comps)!r} ({_short(exc)})") from None
+            raise PhysicsError("gas.unknown_fluid", fluid="&".join(comps), detail=_short(exc)) from None
         self.mixture = tuple(mixture)
         self.name = fluid if fluid else " + ".join(f"{x:.4g} {c}" for c, x in mixture)
         self.M = self.AS.molar_mass()
@@ -172,22 +166,18 @@ class RealGas(Gas):
         self.Pc = self.AS.p_critical() if self.pure else math.nan
         self.flashes = 0
 
-    def describe(self) -> str:
-        return f"{self.name}, real gas (Helmholtz equation of state, CoolProp HEOS)"
-
-    def _update(self, pair, a: float, b: float, what: str) -> State:
+    def _update(self, pair, a: float, b: float, what: dict[str, float]) -> State:
         AS = self.AS
         self.flashes += 1
         try:
             AS.update(pair, a, b)
         except ValueError as exc:
-            raise PhysicsError(self._why_not(pair, a, b, what, exc)) from None
+            raise self._why_not(pair, a, b, what, exc) from None
         # after a P-T flash CoolProp's p() can differ from the pressure asked for by ~1e-9 (found by the
         # verification cases): keep the state the user gave
         P, T = (a, b) if pair == self._CP.PT_INPUTS else (AS.p(), AS.T())
         if not (self.Tmin * 0.999 <= T <= self.Tmax) or P > self.pmax or P <= 0:
-            raise PhysicsError(f"the state with {what} (T = {T:.6g} K, P = {P:.6g} Pa) is outside the range of the "
-                               f"equation of state ({self.Tmin:.5g} K to {self.Tmax:.5g} K, up to {self.pmax:.4g} Pa)")
+            raise PhysicsError("eos.range", state=what, T=T, P=P, Tmin=self.Tmin, Tmax=self.Tmax, pmax=self.pmax)
         phase = _PHASES.get(getattr(AS.phase(), "name", str(AS.phase())).split(".")[-1], "unknown")
         Q = AS.Q()
         quality = Q if 0.0 <= Q <= 1.0 else None
@@ -196,8 +186,8 @@ class RealGas(Gas):
         return State(P, T, 1.0 / AS.rhomass(), AS.umass(), AS.hmass(), AS.smass(), AS.compressibility_factor(),
                      phase, quality)
 
-    def _why_not(self, pair, a: float, b: float, what: str, exc: Exception) -> str:
-        """The reason a flash failed, in the trade's words where we can tell (below the triple point: solid)."""
+    def _why_not(self, pair, a: float, b: float, what: dict[str, float], exc: Exception) -> PhysicsError:
+        """The reason a flash failed, where we can tell (below the triple point: solid)."""
         CP = self._CP
         if self.pure:
             P = {CP.PSmass_INPUTS: a, CP.HmassP_INPUTS: b, CP.PT_INPUTS: a, CP.PQ_INPUTS: a}.get(pair)
@@ -207,20 +197,17 @@ class RealGas(Gas):
             except ValueError:
                 P_tr = T_tr = None
             if P is not None and P_tr and P < P_tr and pair in (CP.PSmass_INPUTS, CP.HmassP_INPUTS):
-                return (f"the state with {what} lies below the triple-point pressure of {self.name} "
-                        f"({P_tr / 1e3:.5g} kPa), where an expanding fluid would form solid; the equation of state "
-                        "covers gas and liquid only")
+                return PhysicsError("eos.below_triple_pressure", state=what, fluid=self.name, P_tr=P_tr)
             if T is not None and T_tr and T < T_tr:
-                return (f"the temperature {T:.6g} K is below the triple point of {self.name} ({T_tr:.5g} K); the "
-                        "equation of state covers gas and liquid only")
-        return f"the equation of state cannot give the state with {what} ({_short(exc)})"
+                return PhysicsError("eos.below_triple_temperature", T=T, fluid=self.name, T_tr=T_tr)
+        return PhysicsError("eos.no_state", state=what, detail=_short(exc))
 
     def state_PT(self, P, T):
-        return self._update(self._CP.PT_INPUTS, P, T, f"P = {P:.6g} Pa, T = {T:.6g} K")
+        return self._update(self._CP.PT_INPUTS, P, T, {"P": P, "T": T})
 
     def state_Pv(self, P, v):
         if self.pure:
-            return self._update(self._CP.DmassP_INPUTS, 1.0 / v, P, f"P = {P:.6g} Pa, v = {v:.6g} m3/kg")
+            return self._update(self._CP.DmassP_INPUTS, 1.0 / v, P, {"P": P, "v": v})
         return self.state_Tv(self._T_of_Pv(P, v), v)
 
     def _T_of_Pv(self, P: float, v: float) -> float:
@@ -236,28 +223,26 @@ class RealGas(Gas):
                 f = AS.p() - P
                 dfdT = AS.first_partial_deriv(CP.iP, CP.iT, CP.iDmass)
             except ValueError as exc:
-                raise PhysicsError(f"the equation of state cannot give the state with P = {P:.6g} Pa, "
-                                   f"v = {v:.6g} m3/kg ({_short(exc)})") from None
+                raise PhysicsError("eos.no_state", state={"P": P, "v": v}, detail=_short(exc)) from None
             if dfdT <= 0:
                 break
             step = f / dfdT
             T = min(max(T - step, 0.5 * T), 2.0 * T)
             if abs(step) < 1e-11 * T:
                 return T
-        raise PhysicsError(f"no single-phase state of this mixture has P = {P:.6g} Pa and v = {v:.6g} m3/kg "
-                           "(the temperature iteration did not converge; the state may be inside the phase envelope)")
+        raise PhysicsError("eos.mixture_Pv", state={"P": P, "v": v})
 
     def state_Tv(self, T, v):
-        return self._update(self._CP.DmassT_INPUTS, 1.0 / v, T, f"T = {T:.6g} K, v = {v:.6g} m3/kg")
+        return self._update(self._CP.DmassT_INPUTS, 1.0 / v, T, {"T": T, "v": v})
 
     def state_Ps(self, P, s):
-        return self._update(self._CP.PSmass_INPUTS, P, s, f"P = {P:.6g} Pa, s = {s:.6g} J/(kg K)")
+        return self._update(self._CP.PSmass_INPUTS, P, s, {"P": P, "s": s})
 
     def state_vs(self, v, s):
-        return self._update(self._CP.DmassSmass_INPUTS, 1.0 / v, s, f"v = {v:.6g} m3/kg, s = {s:.6g} J/(kg K)")
+        return self._update(self._CP.DmassSmass_INPUTS, 1.0 / v, s, {"v": v, "s": s})
 
     def state_Ph(self, P, h):
-        return self._update(self._CP.HmassP_INPUTS, h, P, f"P = {P:.6g} Pa, h = {h:.6g} J/kg")
+        return self._update(self._CP.HmassP_INPUTS, h, P, {"P": P, "h": h})
 
     def cp0_at(self, T: float) -> float:
         """Ideal-gas isobaric heat capacity at T [J/(kg K)]."""

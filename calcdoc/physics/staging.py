@@ -5,6 +5,7 @@ SI floats: pressures [Pa] absolute, temperatures [K].
 """
 from __future__ import annotations
 
+from ..errors import PhysicsError
 from .calc import Calc, Term
 
 __all__ = ["equal_stage_ratio", "stage_ratio_calc", "suction_pressures"]
@@ -51,7 +52,7 @@ def equal_stage_ratio(P_in: float, P_out: float, N: int, fraction: float | None 
     while suction_pressures(P_in, hi, N, None, absolute)[-1] < P_out:
         hi *= 2.0
         if hi > 1e6:
-            raise ValueError("no stage ratio reaches the discharge pressure")
+            raise PhysicsError("staging.no_ratio")
     for _ in range(200):
         mid = 0.5 * (lo + hi)
         if suction_pressures(P_in, mid, N, None, absolute)[-1] < P_out:
@@ -69,11 +70,11 @@ def stage_ratio_calc(P_in: float, P_out: float, N: int, fraction: float | None, 
     ins = {"Pout": Term("P_out", P_out, "Pa"), "Pin": Term("P_in", P_in, "Pa"), "N": Term("N", float(N), "")}
     if absolute:
         ins["dP"] = Term("ΔP_ic", absolute, "Pa")
-        return Calc("r_stage", r, "", "r such that r^{N}·{Pin} − {dP}·(r^({N} − 1) + … + r) = {Pout}", "staging.ratio",
-                    ins, note="equal stage ratios; each intercooler loses ΔP_ic (solved by bisection)")
+        return Calc("r_stage", r, "", "~stage_ratio_absolute", "staging.ratio",
+                    ins, note="stage_ratio_absolute")
     if fraction:
         ins["d"] = Term("δ_ic", fraction, "")
         return Calc("r_stage", r, "", "({Pout}/({Pin}·(1 − {d})^({N} − 1)))^(1/{N})", "staging.ratio", ins,
-                    note="equal stage ratios; each intercooler loses the fraction δ_ic of its inlet pressure")
-    return Calc("r_stage", r, "", "({Pout}/{Pin})^(1/{N})", "staging.ratio", ins, note="equal stage ratios")
+                    note="stage_ratio_fraction")
+    return Calc("r_stage", r, "", "({Pout}/{Pin})^(1/{N})", "staging.ratio", ins, note="stage_ratio")
 

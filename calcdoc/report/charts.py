@@ -159,7 +159,7 @@ def _limits(ax, xs, ys, dome_x=None, dome_y=None):
         # "near": within the process's own extent again on every side (in the scale of each axis)
         ex = (t(x1, logx) - t(x0, logx)) or abs(t(x1, logx)) * 0.2 or 1.0
         ey = (t(y1, logy) - t(y0, logy)) or abs(t(y1, logy)) * 0.2 or 1.0
-        near = [(x, y) for x, y in zip(dome_x, dome_y)
+        near = [(x, y) for x, y in zip(dome_x, dome_y, strict=True)
                 if (not logx or x > 0) and (not logy or y > 0)
                 and t(x0, logx) - ex <= t(x, logx) <= t(x1, logx) + ex
                 and t(y0, logy) - ey <= t(y, logy) <= t(y1, logy) + ey]
@@ -191,7 +191,7 @@ def sweep_chart(sweep: dict, system: str) -> str:
                              squeeze=False)
     for k, s in enumerate(series):
         ax = axes[k][0]
-        pts = [(xv, yv) for xv, yv in zip(x, s["values"]) if yv is not None]
+        pts = [(xv, yv) for xv, yv in zip(x, s["values"], strict=True) if yv is not None]
         y = _conv([p[1] for p in pts], s["unit"], system) if s["unit"] else [p[1] for p in pts]
         ax.plot([p[0] for p in pts], y, "o-", ms=3, color=PALETTE[k % len(PALETTE)])
         ax.set_ylabel(units.pretty_unit(units.display_unit(s["unit"], system)) if s["unit"] else "", fontsize=7.5)

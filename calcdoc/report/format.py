@@ -12,6 +12,7 @@ from markupsafe import Markup, escape
 
 from .. import units
 from ..physics.calc import Calc, Term
+from . import words
 
 # Units in which substituted equations are shown: coherent with kPa and kJ so that a checker can
 # redo the arithmetic (kPa·m³ = kJ); temperatures in equations are always absolute (K).
@@ -145,6 +146,7 @@ def equation(c: Calc, numbers: bool) -> Markup:
     """The right-hand side of a calc, typeset: with symbols, or with the numbers put in."""
     if not c.equation:
         return Markup("")
+    src = words.equation(c.equation)
 
     def field(key: str) -> str:
         t = c.inputs.get(key)
@@ -155,7 +157,7 @@ def equation(c: Calc, numbers: bool) -> Markup:
         text = subst_value(t)
         return f"({text})" if t.value < 0 else text
 
-    return Markup(_typeset(c.equation, field))
+    return Markup(_typeset(src, field))
 
 
 def _typeset(src: str, field) -> str:

@@ -4,7 +4,7 @@ from __future__ import annotations
 import json
 
 from ..engine.results import Results, to_json
-from .words import note, say
+from .words import STAGING_RULES, equation, gas_text, note, say
 
 __all__ = ["dumps", "to_contract"]
 
@@ -14,9 +14,16 @@ def to_contract(res: Results) -> dict:
     out = to_json(res)
     system = res.job.units
     out["warnings"] = [say(w, system) for w in res.warnings]
+    if isinstance(out.get("gas"), dict) and "model" in out["gas"]:
+        gas = out["gas"]
+        out["gas"] = {"model": gas["model"], "description": gas_text(res.gas),
+                      **{k: v for k, v in gas.items() if k != "model"}}
     for leg in out.get("legs", ()):
         for c in leg.get("calcs", ()):
-            c["note"] = note(c["note"])
+            c["note"] = note(c["note"], system)
+            c["equation"] = equation(c["equation"])
+    for item in out.get("staging", ()):
+        item["rule"] = STAGING_RULES.get(item["rule"], item["rule"])
     return out
 
 

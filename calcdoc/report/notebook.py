@@ -4,7 +4,7 @@ from __future__ import annotations
 from html import escape
 
 from .. import units
-from .words import say
+from .words import gas_text, say
 
 
 def _v(value, si_unit: str, system: str, sig: int = 5) -> str:
@@ -23,7 +23,7 @@ def results_html(res) -> str:
     S = res.job.units
     t = res.job.calc
     out = [f"<div><b>{escape(t.number)} rev {escape(t.revision)}</b>: {escape(t.title)}<br>"
-           f"<small>{escape(res.gas.describe())}</small>"]
+           f"<small>{escape(gas_text(res.gas))}</small>"]
     cols = (("P", "Pa"), ("T", "K"), ("v", "m**3/kg"), ("u", "J/kg"), ("h", "J/kg"), ("s", "J/(kg*K)"), ("Z", ""))
     out.append("<table><thead><tr><th>State</th>" + "".join(
         f"<th>{c} [{_u(u, S)}]</th>" if u else f"<th>{c}</th>" for c, u in cols) + "<th>Phase</th></tr></thead><tbody>")

@@ -8,10 +8,9 @@ from __future__ import annotations
 import datetime as _dt
 import mimetypes
 import os
+import re
 from importlib import resources
 from pathlib import Path
-
-import re
 from urllib.parse import unquote, urlsplit
 
 from .. import units
@@ -70,7 +69,7 @@ def _env():
     env.filters.update(num=fmt.num, qty=fmt.qty, unit_of=fmt.unit_of, value_in=fmt.value_in,
                        symbol=fmt.symbol, eq=fmt.equation, result_si=fmt.result_si,
                        css_string=fmt.css_string, flavour=fmt.flavour, subscripts=fmt.subscripts,
-                       say=words.say, note=words.note)
+                       say=words.say, note=words.note, gas_text=words.gas_text)
     return env
 
 
@@ -179,7 +178,7 @@ def render_pdf(results, results_json: str) -> bytes:
     html = render_html(results)
     job = results.job
     epoch = _epoch(job.calc.date)
-    stamp = _dt.datetime.fromtimestamp(epoch, _dt.timezone.utc)
+    stamp = _dt.datetime.fromtimestamp(epoch, _dt.UTC)
     base = safe_stem(job.calc.number, job.calc.revision)
     attachments = [
         Attachment(string=job.data, name=job_file_name(job), description="Job file, byte for byte",
@@ -210,7 +209,7 @@ def _epoch(date_text: str) -> int:
         d = _dt.date.fromisoformat(str(date_text)[:10])
     except ValueError:
         return 0
-    return int(_dt.datetime(d.year, d.month, d.day, tzinfo=_dt.timezone.utc).timestamp())
+    return int(_dt.datetime(d.year, d.month, d.day, tzinfo=_dt.UTC).timestamp())
 
 
 def safe_stem(number: str, revision: str) -> str:

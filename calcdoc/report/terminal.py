@@ -5,7 +5,7 @@ from .. import units
 from ..engine.revision import Diff
 from ..units import display
 from .format import _num
-from .words import say
+from .words import gas_text, say
 
 __all__ = ["diff_text", "summary"]
 
@@ -53,7 +53,7 @@ def summary(results, written) -> None:
         return f"{text} {u}".replace("\u2009", " ").strip()
 
     print(f"{t.number} rev {t.revision}: {t.title}")
-    print(f"  gas: {results.gas.describe()}")
+    print(f"  gas: {gas_text(results.gas)}")
     for rec in results.states:
         s = rec.state
         print(f"  state {rec.label:>3}: P = {show(s.P, 'Pa'):>14}   T = {show(s.T, 'K'):>10}   "

@@ -106,7 +106,7 @@ def render_pdf(results_json: str, case_files: list[tuple[str, str]]) -> bytes:
 
     data = json.loads(results_json)
     html = render_html(data)
-    stamp = _dt.datetime.fromtimestamp(EPOCH, _dt.timezone.utc)
+    stamp = _dt.datetime.fromtimestamp(EPOCH, _dt.UTC)
     attachments = [Attachment(string=results_json.encode("utf-8"), name="calcdoc-selftest.json",
                               description="Verification results (JSON)", created=stamp, modified=stamp,
                               relationship="Data")]

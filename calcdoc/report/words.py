@@ -5,31 +5,179 @@ Templates are filled by :func:`calcdoc.units.phrase` (``{P:Pa}``, ``{T:K~4}``, `
 """
 from __future__ import annotations
 
-from ..errors import Finding, PhysicsError
-from ..job.messages import found_text
-from ..units import phrase
+from collections.abc import Callable
 
-__all__ = ["FACTS", "NOTES", "WARNINGS", "note", "say"]
+from ..errors import Finding
+from ..job.messages import found_text, worded
+from ..units import phrase, say as say_si
+
+__all__ = ["EQUATIONS", "FACTS", "NOTES", "STAGING_RULES", "WARNINGS", "equation", "gas_text", "note", "say"]
 
 #: warning code → sentence
-WARNINGS: dict[str, str] = {}
+WARNINGS: dict[str, str] = {
+    "gas.envelope_failed": "Gas: the phase envelope of the mixture could not be traced ({detail}); mixture states are "
+                           "flashed without an imposed phase.",
+    "throttle.two_phase_outlet": "Leg '{leg}': the outlet is two-phase at P = {P:Pa~5}, saturation temperature {T:K~4}, "
+                                 "vapour quality x = {x:.4g}. Condensation: liquid leaves the throttle; check that what "
+                                 "follows accepts it.",
+    "ideal.condenses": "{where}: at P = {P:Pa~5} and T = {T:K~4} real {fluid} would condense (its saturation "
+                       "temperature there is {dew:K~4}); the ideal-gas model has no liquid and its numbers are not valid "
+                       "there. Use model: real.",
+    "ideal.z_departs": "{where}: real {fluid} has a compressibility factor Z = {Z:.4g} at P = {P:Pa~5} and T = {T:K~4} "
+                       "(CoolProp), so the ideal-gas model is off by about {percent:.2g} % in density there. Consider "
+                       "model: real.",
+}
+for _what, _words in (("saturation", "saturation temperature"), ("dew", "dew temperature")):
+    WARNINGS[f"phase.{_what}.below"] = ("{where}: the state at P = {P:Pa}, T = {T:K~4} is at or below the " + _words
+                                        + " ({dew:K~4} at that pressure): liquid can form.")
+    WARNINGS[f"phase.{_what}.near"] = ("{where}: the gas comes within {gap:dK~2} of its " + _words
+                                       + " ({dew:K~4} at {P:Pa}); condensation is possible.")
 #: fact code (a plain statement about a leg) → sentence
-FACTS: dict[str, str] = {}
+FACTS: dict[str, str] = {
+    "closed.n_derived": "n = {n:.6g} derived from the measured end state.",
+    "closed.n1_form": "Boundary work by the form that stays accurate for n near 1.",
+    "closed.isothermal_real": "Real gas: heat from T·ΔS along the isotherm, work from the first law (P·V is not "
+                              "constant for a real gas).",
+    "flow.ideal_closed_form": "Ideal gas with constant specific heats: closed-form end temperatures.",
+    "flow.real_path": "Real gas: the path of constant polytropic efficiency is integrated with the equation of state "
+                      "({flashes} equation-of-state evaluations for this stage).",
+    "flow.schultz": "Schultz (1962) method, as used by ASME PTC 10, from the same end states: f = {f:.5f}, "
+                    "η_p = {eta:.5f}, which differs from the direct integration by {points:+.3f} points.",
+    "throttle.dT": "Throttle: the temperature changes by {dT:+.4g} K (Joule–Thomson effect).",
+    "throttle.two_phase": "The outlet is two-phase: vapour quality x = {x:.4f} at the saturation temperature {T:K~4}.",
+    "flow.reversible": "Internally reversible steady flow: shaft work in = ∫v·dP along the path; the flow work is "
+                       "−∫v·dP.",
+}
 #: note code of a calc (which form was used, what a value means) → text
-NOTES: dict[str, str] = {}
+NOTES: dict[str, str] = {
+    "end_target": "end target",
+    "from_eos": "from the equation of state",
+    "n_equivalent": "equivalent polytropic exponent between the end states",
+    "solved_on_path": "solved on the equation of state along P·v^n = const",
+    "n1_form": "form accurate for n near 1 (no cancellation)",
+    "isentropic": "reversible and adiabatic: entropy constant",
+    "isentropic_end": "isentropic end state",
+    "polytropic_head": "polytropic head ∫v·dP along the path of constant η_p",
+    "adiabatic_machine": "adiabatic machine: no heat exchanged",
+    "driver_delivers": "driver delivers",
+    "shaft_receives": "shaft receives",
+    "measured": "measured",
+    "rk_steps": "integrated in ln P with the equation of state: {steps} Runge–Kutta steps",
+    "eta_p_secant": "secant iteration on η_p, each trial integrated in ln P ({steps} steps in the last)",
+    "schultz_points": "percentage points: the code method (Schultz) against the direct integration",
+    "heat_removed": "negative: heat removed from the gas",
+    "no_shaft_work": "no shaft work",
+    "throttle_h": "adiabatic, no work: enthalpy is conserved",
+    "throttle_ideal": "ideal gas: enthalpy depends on temperature only, so the temperature does not change",
+    "throttle_ph_flash": "T at P_2 with h_2 = h_1 (equation of state, (h, P) flash)",
+    "throttle_eos": "T at P_2 with h_2 = h_1 (equation of state)",
+    "throttle_wet": "saturation temperature at P_2: the outlet is two-phase",
+    "quality": "vapour quality: mass fraction of vapour in the two-phase outlet",
+    "isentropic_work": "= ∫v·dP at constant s",
+    "stage_ratio_absolute": "equal stage ratios; each intercooler loses ΔP_ic (solved by bisection)",
+    "stage_ratio_fraction": "equal stage ratios; each intercooler loses the fraction δ_ic of its inlet pressure",
+    "stage_ratio": "equal stage ratios",
+    "cp0_at_start": "ideal-gas heat capacity of the fluid at the start temperature",
+    "std_atmosphere": "U.S. Standard Atmosphere 1976, troposphere: P_0 = 101.325 kPa, T_0 = 288.15 K, "
+                      "L = −0.0065 K/m, r_0 = 6 356 766 m",
+    "entered_as": "entered as {entered}",
+    "start_volume_flow": "actual volume flow at the start state",
+    "standard_conditions": "reference conditions stated in the job: {P}, {T}",
+    "sign_reversed": "{title}: {symbol} with its sign reversed",
+    "total.comp_power": "total compressor gas power",
+    "total.exp_power": "total expander gas power output",
+    "total.cooling": "total cooling duty (heat removed from the gas)",
+    "total.heating": "total heating duty (heat added to the gas)",
+    "total.comp_shaft": "total compressor shaft power",
+    "total.exp_shaft": "total expander shaft power output",
+}
+FACTS["staging.given"] = ("Staged into {stages} stages with equal pressure ratios (allowing for the intercooler "
+                          "pressure drops), as the job asks.")
+
+#: Equations stated in words (an implicit condition rather than a formula): code → text with {placeholders}.
+EQUATIONS: dict[str, str] = {
+    "~stage_ratio_absolute": "r such that r^{N}·{Pin} − {dP}·(r^({N} − 1) + … + r) = {Pout}",
+    "~v_on_path": "v such that T(P_1·(v_1/v)^n, v) = T_2",
+    "~T_on_path_compressor": "T at {P2} on the path v·dP = {eta}·dh",
+    "~T_on_path_expander": "T at {P2} on the path dh = {eta}·v·dP",
+    "~eta_p_compressor": "η_p such that the path v·dP = η_p·dh from state {i} reaches {T2} at {P2}",
+    "~eta_p_expander": "η_p such that the path dh = η_p·v·dP from state {i} reaches {T2} at {P2}",
+}
+
+#: The rules by which a compressor leg was staged (results file ``staging[].rule``).
+STAGING_RULES = {"given": "given number of stages", "fewest": "fewest stages under the discharge-temperature limit"}
+
+
+def equation(text: str) -> str:
+    """A calc's equation: a formula as it is, or the words of an equation code."""
+    return EQUATIONS.get(text, text)
+
+
+#: Words that depend on their values beyond filling a template: code → (values, system) → text.
+SPOKEN: dict[str, Callable[[dict, str], str]] = {}
+
+
+def _spoken(code: str):
+    def register(fn):
+        SPOKEN[code] = fn
+        return fn
+    return register
+
+
+SPOKEN["phase.saturation.in"] = lambda v, system: _phase_in_text(v, system, "saturation temperature")
+SPOKEN["phase.dew.in"] = lambda v, system: _phase_in_text(v, system, "dew temperature")
+
+
+def _phase_in_text(v: dict, system: str, what: str) -> str:
+    extra = f"; the {what} at {say_si(v['P'], 'Pa', system)} is {say_si(v['dew'], 'K', system, 4)}" if v["known"] else ""
+    return (f"{found_text(v['where'], system)}: the gas is {v['phase']} at P = {say_si(v['P'], 'Pa', system)}, "
+            f"T = {say_si(v['T'], 'K', system, 4)}{extra}. Condensation: results along this path assume phase "
+            "equilibrium; check that liquid is acceptable and that the properties used apply.")
+
+
+@_spoken("pressure.unmarked")
+def _unmarked(v: dict, system: str) -> str:
+    listed = ", ".join(f"{path} = {entered} (line {line})" for path, entered, line in v["inputs"])
+    return (f"Pressures written in psi or kgf/cm2 without a gauge or absolute marker are taken as absolute: {listed}. "
+            "If a gauge pressure is meant, write psig (with the site atmosphere); write psia to make it explicit.")
+
+
+@_spoken("staging.fewest")
+def _fewest(v: dict, system: str) -> str:
+    steps = "; ".join(f"{n} stage{'s' if n > 1 else ''}: highest discharge {say_si(T, 'K', system, 4)} "
+                      f"({'within' if T <= v['limit'] else 'above'} the limit)" for n, T in v["trials"])
+    return (f"Fewest stages that keep every discharge temperature at or below {v['entered']}: {v['stages']}. "
+            f"Trials with equal stage ratios: {steps}.")
+
+
+@_spoken("total.partial")
+def _partial(v: dict, system: str) -> str:
+    return (f"{NOTES[v['total']]} — partial: no mechanical efficiency for {', '.join(v['missing'])}, not included")
 
 
 def say(item: Finding | str, system: str = "SI") -> str:
     """A warning or a fact in words (text passes through as it is)."""
     if isinstance(item, str):
         return item
+    if item.code in SPOKEN:
+        return SPOKEN[item.code](item.values, system)
     template = WARNINGS.get(item.code) or FACTS.get(item.code)
     if template is None:
         return found_text(item, system)
-    values = {k: found_text(v, system) if isinstance(v, (Finding, PhysicsError)) else v for k, v in item.values.items()}
-    return phrase(template, values, system)
+    return phrase(template, worded(item.values, system), system)
 
 
-def note(code: str) -> str:
-    """The text of a calc's note (a code of :data:`NOTES`, or text as it is)."""
-    return NOTES.get(code, code)
+def gas_text(gas) -> str:
+    """The gas model in words: "Nitrogen, real gas (Helmholtz equation of state, CoolProp HEOS)"."""
+    if gas.model == "ideal":
+        return f"{gas.name} as an ideal gas, k = {gas.k:.5g}, M = {gas.M * 1e3:.5g} g/mol"
+    return f"{gas.name}, real gas (Helmholtz equation of state, CoolProp HEOS)"
+
+
+def note(item: Finding | str, system: str = "SI") -> str:
+    """The text of a calc's note: a code of :data:`NOTES` (or a finding with values), or text as it is."""
+    if isinstance(item, Finding):
+        if item.code in SPOKEN:
+            return SPOKEN[item.code](item.values, system)
+        return phrase(NOTES.get(item.code, item.code), worded(item.values, system), system)
+    return NOTES.get(item, item)

@@ -16,16 +16,15 @@ import math
 import platform
 import re
 from dataclasses import dataclass, field
-from typing import Any
-
 from pathlib import Path
+from typing import Any
 
 from .. import __version__
 from ..engine import run
-from ..report.jsonfile import to_contract as results_json
 from ..errors import CalcdocError
 from ..job import CLOSED_PROCESSES, FLOW_PROCESSES, loads
 from ..job.source import dump as dump_yaml
+from ..report.jsonfile import to_contract as results_json
 from ..report.methods import METHODS
 from ..report.output import write_atomic
 from ..report.verification import render_pdf

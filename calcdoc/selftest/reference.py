@@ -182,7 +182,7 @@ def _interpret(node: ast.AST, scope: dict):
     if isinstance(node, ast.Lambda):
         params = [a.arg for a in node.args.args]
         body = node.body
-        return lambda *vals: _interpret(body, {**scope, **dict(zip(params, vals))})
+        return lambda *vals: _interpret(body, {**scope, **dict(zip(params, vals, strict=False))})
     raise ExpressionError(f"{type(node).__name__} is not allowed in an expected value")
 
 

@@ -4,6 +4,7 @@ from __future__ import annotations
 import json
 
 from _limits_helpers import ideal_job, write
+
 from calcdoc import cli
 
 
@@ -24,7 +25,7 @@ def test_a_folder_with_one_broken_job_finishes_the_rest(tmp_path, capsys):
     table = captured.out.splitlines()
     assert table[0] == "3 jobs:"
     expected = [("ok", "a.yaml"), ("ok", "b.yaml"), ("BAD INPUT", "c_broken.yaml")]   # in file order
-    for line, (status, name) in zip(table[1:4], expected):
+    for line, (status, name) in zip(table[1:4], expected, strict=True):
         assert line.strip().startswith(status) and f"{jobs / name} " in line + " "
     assert "2 ok, 1 not ok." in captured.out
 

@@ -5,7 +5,6 @@ import subprocess
 import sys
 from pathlib import Path
 
-
 ROOT = Path(__file__).resolve().parents[2]
 DEMO = ROOT / "example_jobs" / "press_gas_spring.yaml"
 

@@ -8,13 +8,12 @@ from pathlib import Path
 import jsonschema
 import pytest
 import yaml
-
 from _limits_helpers import ideal_job
+
 from calcdoc import cli
-from calcdoc.job import jobfile
 from calcdoc.engine import run
 from calcdoc.errors import JobError
-from calcdoc.job import loads
+from calcdoc.job import jobfile, loads
 from calcdoc.job.schema import CLOSED_START_KEYS, FLOW_START_KEYS, job_schema
 from calcdoc.job.starter import STARTERS
 

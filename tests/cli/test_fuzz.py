@@ -13,8 +13,7 @@ import math
 
 import pytest
 import yaml
-from hypothesis import HealthCheck, assume, given, note, settings
-from hypothesis import strategies as st
+from hypothesis import HealthCheck, assume, given, note, settings, strategies as st
 
 from calcdoc.engine import run
 from calcdoc.errors import JobError

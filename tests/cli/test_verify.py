@@ -17,7 +17,6 @@ import calcdoc
 from calcdoc.cli import main
 from calcdoc.cli.verify import RERUN_RTOL, VerifyError, _compare, read_package, verify
 
-
 ROOT = Path(__file__).resolve().parents[2]
 DEMO = ROOT / "example_jobs" / "press_gas_spring.yaml"
 

@@ -5,8 +5,8 @@ from __future__ import annotations
 import json
 
 import pytest
-
 from _limits_helpers import ideal_job, write
+
 from calcdoc import cli
 from calcdoc.engine import run
 from calcdoc.errors import JobError

@@ -4,10 +4,10 @@ from __future__ import annotations
 import re
 
 import pytest
+from conftest import flow_job
 
 from calcdoc.engine import run
 from calcdoc.job import loads
-from conftest import flow_job
 
 
 @pytest.mark.parametrize("gas", ["{fluid: Air, model: ideal, k: 1.4, R: 287 J/(kg*K)}",
@@ -26,8 +26,9 @@ def test_isentropic_enthalpy_is_written_with_defined_symbols(gas):
 
 
 def test_flow_uses_no_private_engine_names():
-    import calcdoc.engine.flow as flow
     from pathlib import Path
+
+    import calcdoc.engine.flow as flow
 
     src = Path(flow.__file__).read_text(encoding="utf-8")
     imports = re.findall(r"from \.(?:common|diagnose) import ([^\n]+)", src)

@@ -3,12 +3,12 @@ a clear error when a limit on a signed quantity meets a negative value."""
 from __future__ import annotations
 
 import pytest
-
 from _limits_helpers import ideal_job
+from conftest import flow_job
+
 from calcdoc.engine import run
 from calcdoc.errors import JobError
 from calcdoc.job import loads
-from conftest import flow_job
 
 AIR_IDEAL = "{fluid: Air, model: ideal, k: 1.4, R: 287 J/(kg*K)}"
 HOT_START = "{pressure: 500 kPa, temperature: 400 K, mass_flow: 1 kg/s}"

@@ -3,11 +3,11 @@ reach is refused, pointing at the measured temperature, with the bounds right fo
 from __future__ import annotations
 
 import pytest
+from conftest import flow_job
 
 from calcdoc.engine import run
 from calcdoc.errors import JobError
 from calcdoc.job import loads
-from conftest import flow_job
 
 AIR_IDEAL = "{fluid: Air, model: ideal, k: 1.4, R: 287 J/(kg*K)}"
 START = "{pressure: 100 kPa, temperature: 300 K, mass_flow: 1 kg/s}"

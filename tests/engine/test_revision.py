@@ -4,12 +4,12 @@ from __future__ import annotations
 import subprocess
 
 import pytest
-
 from _limits_helpers import ideal_job, write
+
 from calcdoc import cli
 from calcdoc.engine import run
-from calcdoc.job import loads
 from calcdoc.engine.revision import compare, with_changes
+from calcdoc.job import loads
 from calcdoc.report.terminal import diff_text
 
 LIMITS = "limits:\n  - {name: Peak, quantity: pressure, at: Compression, max: 270 kPa, basis: common practice}\n"

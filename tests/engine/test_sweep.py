@@ -7,8 +7,8 @@ import time
 from pathlib import Path
 
 import pytest
-
 from _limits_helpers import ideal_job
+
 from calcdoc.engine import run
 from calcdoc.errors import JobError
 from calcdoc.job import loads

@@ -3,12 +3,12 @@ exists at some points only has no margin at the others, shown as "—" in the re
 from __future__ import annotations
 
 import pytest
+from conftest import flow_job
 
 from calcdoc.engine import run
 from calcdoc.job import loads
 from calcdoc.report.format import value_in
 from calcdoc.report.render import render_html
-from conftest import flow_job
 
 AIR_IDEAL = "{fluid: Air, model: ideal, k: 1.4, R: 287 J/(kg*K)}"
 START = "{pressure: 100 kPa, temperature: 300 K, mass_flow: 1 kg/s}"

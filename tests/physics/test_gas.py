@@ -45,15 +45,16 @@ def test_real_gas_matches_coolprop_direct():
 def test_real_gas_unknown_fluid():
     from calcdoc.errors import PhysicsError
 
-    with pytest.raises(PhysicsError, match="does not know the fluid"):
+    with pytest.raises(PhysicsError) as err:
         RealGas("Nitrogenn")
+    assert err.value.code == "gas.unknown_fluid" and err.value.values["fluid"] == "Nitrogenn"
 
 
 def test_real_gas_out_of_range():
     from calcdoc.errors import PhysicsError
 
     g = RealGas("Nitrogen")
-    with pytest.raises(PhysicsError, match="range"):
+    with pytest.raises(PhysicsError, match="eos.range"):
         g.state_PT(1e5, 5000.0)
 
 
@@ -76,5 +77,5 @@ def test_expansion_below_the_triple_point_is_named():
 
     g = RealGas("CO2")
     s1 = g.state_PT(60e5, 303.15)
-    with pytest.raises(PhysicsError, match="triple-point pressure"):
+    with pytest.raises(PhysicsError, match="eos.below_triple_pressure"):
         g.state_Ps(5e5, s1.s)

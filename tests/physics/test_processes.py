@@ -5,8 +5,8 @@ from decimal import Decimal, getcontext
 import pytest
 from scipy.integrate import quad
 
-from calcdoc.physics.gas import IdealGas, RealGas
 from calcdoc.physics.closed import Target, closed_leg, polytropic_work
+from calcdoc.physics.gas import IdealGas, RealGas
 
 K, M = 1.4, 0.0280134          # demo ideal gas (nitrogen-like)
 P1, T1, M_GAS = 5e5, 300.0, 0.2
@@ -140,7 +140,7 @@ def test_unreachable_temperature_on_real_polytropic(nitrogen):
     from calcdoc.errors import PhysicsError
 
     s1 = nitrogen.state_PT(5e6, 290.0)
-    with pytest.raises(PhysicsError, match="reaches the end target"):
+    with pytest.raises(PhysicsError, match="path.no_target"):
         closed_leg(nitrogen, "leg", "polytropic", 1, s1, 1.0, [Target("T", 400.0)], 1.3)
 
 
@@ -156,7 +156,7 @@ def test_target_that_contradicts_the_process(ideal, process, target):
     from calcdoc.errors import PhysicsError
 
     s1 = ideal.state_PT(P1, T1)
-    with pytest.raises(PhysicsError, match="cannot reach"):
+    with pytest.raises(PhysicsError, match="leg.target_not_reachable"):
         leg(ideal, process, [Target(target, 1.0)], s1=s1)
 
 

@@ -18,11 +18,9 @@ import pytest
 from pypdf import PdfReader
 
 import calcdoc
-from calcdoc.report import methods
-from calcdoc.physics.calc import Calc
-from calcdoc.report import render
 from calcdoc.engine.results import Check
-
+from calcdoc.physics.calc import Calc
+from calcdoc.report import methods, render
 
 ROOT = Path(__file__).resolve().parents[2]
 DEMO = ROOT / "example_jobs" / "press_gas_spring.yaml"
@@ -158,7 +156,7 @@ def test_sections_in_order(demo):
              "7 Design checks", "8 Diagrams", "9 Cautions", "10 References", "Appendix A: job file",
              "Appendix B: software"]
     at = [text.find(h) for h in heads]
-    assert -1 not in at, dict(zip(heads, at))
+    assert -1 not in at, dict(zip(heads, at, strict=True))
     assert at == sorted(at)
 
 
