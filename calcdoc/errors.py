@@ -5,6 +5,7 @@ The library raises; only the command line turns an error into a message and an e
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from typing import Any
 
 __all__ = ["EXIT_BAD_INPUT", "EXIT_CHECK_FAILED", "EXIT_INTERNAL", "EXIT_INTERRUPTED", "EXIT_OK", "CalcdocError",
            "Finding", "JobError", "PhysicsError", "Problem"]
@@ -62,7 +63,7 @@ class Finding:
     """
 
     code: str
-    values: dict = field(default_factory=dict)
+    values: dict[str, Any] = field(default_factory=dict)
     path: str = ""
 
     def __str__(self) -> str:
@@ -76,7 +77,7 @@ class PhysicsError(CalcdocError):
     becomes a problem of the job file.
     """
 
-    def __init__(self, code: str, /, **values):
+    def __init__(self, code: str, /, **values: Any) -> None:
         self.code = code
         self.values = values
         super().__init__(str(Finding(code, values)))

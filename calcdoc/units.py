@@ -12,6 +12,7 @@ from __future__ import annotations
 import re
 from dataclasses import dataclass
 from functools import lru_cache
+from typing import Any
 
 __all__ = [
     "DIMENSIONS",
@@ -124,14 +125,15 @@ class UnitParseError(ValueError):
 
 
 @lru_cache(maxsize=1)
-def registry():
+def registry() -> Any:
     """The one pint registry (created on first use; ~0.3 s)."""
     import pint
 
-    ureg = pint.UnitRegistry()
+    lib: Any = pint             # pint's own annotations are incomplete
+    ureg = lib.UnitRegistry()
     ureg.define("kmol = 1000 * mol")
     ureg.define("lbmol = 453.59237 * mol")     # pound-mole: the avoirdupois pound is 453.592 37 g (exact)
-    pint.set_application_registry(ureg)
+    lib.set_application_registry(ureg)
     return ureg
 
 
@@ -187,7 +189,7 @@ def standard_atmosphere_pressure(z: float) -> float:
         raise ValueError("elevation outside the troposphere layer of the standard atmosphere (-610 m to 11 000 m)")
     r0, T0, L, g0, M0, Rstar = 6356766.0, 288.15, -0.0065, 9.80665, 0.0289644, 8.31432
     H = r0 * z / (r0 + z)
-    return P_STD * (T0 / (T0 + L * H)) ** (g0 * M0 / (Rstar * L))
+    return float(P_STD * (T0 / (T0 + L * H)) ** (g0 * M0 / (Rstar * L)))
 
 
 def _split(text: str, kind: str) -> tuple[float, str]:
@@ -223,7 +225,7 @@ _EXAMPLES = {
 }
 
 
-def parse_quantity(value, kind: str, atmosphere: float | None = None, allow_percent: bool = False) -> Parsed:
+def parse_quantity(value: Any, kind: str, atmosphere: float | None = None, allow_percent: bool = False) -> Parsed:
     """Read a quantity of the given kind (a key of :data:`DIMENSIONS`) from job-file text.
 
     Pressures: a unit with a gauge marker (``barg``, ``psig``, ``kPag``, ``bar(g)``, ``bar gauge``) is
@@ -465,13 +467,13 @@ class _Phrase:
         outer = self
 
         class _F(string.Formatter):
-            def format_field(self, value, spec):
+            def format_field(self, value: Any, spec: str) -> str:
                 return outer.field(value, spec)
 
         self.system = system
         self.formatter = _F()
 
-    def field(self, value, spec: str) -> str:
+    def field(self, value: Any, spec: str) -> str:
         if not spec or isinstance(value, str):
             return format(value, spec if not isinstance(value, str) else "")
         unit, _, sig = spec.partition("~")
@@ -482,7 +484,7 @@ class _Phrase:
         return format(value, spec)
 
 
-def phrase(template: str, values: dict, system: str = "SI") -> str:
+def phrase(template: str, values: dict[str, Any], system: str = "SI") -> str:
     """A message from a template and SI values, each shown in the job's unit system.
 
     A field ``{P:Pa}`` is the SI value ``P`` [Pa] shown in the system's pressure unit (kPa, psia), ``{T:K~4}``

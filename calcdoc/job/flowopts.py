@@ -7,7 +7,11 @@ leg (an end pressure against it) are made when the engine reaches the leg, point
 """
 from __future__ import annotations
 
+from collections.abc import Callable
+from typing import Any
+
 from ..errors import Problem
+from ..units import say
 from .model import Drop, Input, Job, LegOptions, LegSpec, Staging
 from .reader import Reader
 from .source import Node
@@ -25,7 +29,7 @@ INTERCOOLER_KEYS = ("temperature", "pressure_drop")
 class _Options:
     """Reads the options of the legs of one job with a shared :class:`Reader`."""
 
-    def __init__(self, r: Reader, job_locate):
+    def __init__(self, r: Reader, job_locate: Callable[[str], tuple[int, int]]) -> None:
         self.r = r
         self.locate = job_locate
 
@@ -35,7 +39,7 @@ class _Options:
     def leg(self, leg: LegSpec, o: dict[str, Node]) -> LegOptions:
         """The options of one leg from its option nodes."""
         proc = leg.process
-        out: dict = {}
+        out: dict[str, Any] = {}
         for key, allowed in (("efficiency", MACHINES), ("mechanical_efficiency", MACHINES),
                              ("pressure_drop", ("cooler", "heater")), ("staging", ("compressor",))):
             if key in o and proc not in allowed:
@@ -131,7 +135,8 @@ class _Options:
         return Node(None, line, col, path)
 
 
-def read_options(r: Reader, legs: list[tuple[LegSpec, dict[str, Node]]], locate) -> list[LegOptions]:
+def read_options(r: Reader, legs: list[tuple[LegSpec, dict[str, Node]]],
+                 locate: Callable[[str], tuple[int, int]]) -> list[LegOptions]:
     """The options of every leg of a steady-flow job (problems go to the reader)."""
     o = _Options(r, locate)
     return [o.leg(leg, nodes) for leg, nodes in legs]
@@ -156,7 +161,7 @@ def chain_problems(job: Job) -> list[Problem]:
             d = leg.options.drop
             if P is not None and d.inp is not None and d.outlet(P) <= 0:
                 out.append(job.problem_at(d.inp, f"the pressure drop {d.inp.entered} leaves no outlet pressure: it "
-                                          f"is larger than the inlet pressure of '{leg.name}' ({P / 1e3:.6g} kPa), "
+                                          f"is larger than the inlet pressure of '{leg.name}' ({say(P, 'Pa', job.units, 6)}), "
                                           "or equal to it",
                                           "give a drop smaller than the inlet pressure"))
                 return out
@@ -187,10 +192,10 @@ def direction_problem(job: Job, leg: LegSpec, P_in: float, T_in: float | None) -
             return None
         t = leg.end["temperature"]
         if proc == "cooler" and t.si > T_in:
-            return at(t, f"the cooler outlet {t.entered} is above its inlet temperature ({T_in - 273.15:.4g} °C)",
+            return at(t, f"the cooler outlet {t.entered} is above its inlet temperature ({say(T_in, 'K', job.units, 4)})",
                       "a cooler lowers the temperature; use a heater, or a lower outlet temperature")
         if proc == "heater" and t.si < T_in:
-            return at(t, f"the heater outlet {t.entered} is below its inlet temperature ({T_in - 273.15:.4g} °C)",
+            return at(t, f"the heater outlet {t.entered} is below its inlet temperature ({say(T_in, 'K', job.units, 4)})",
                       "a heater raises the temperature; use a cooler, or a higher outlet temperature")
         return None
     inp = leg.end.get("pressure") or leg.end.get("pressure_ratio")
@@ -198,9 +203,11 @@ def direction_problem(job: Job, leg: LegSpec, P_in: float, T_in: float | None) -
         return None
     P2 = inp.si if "pressure" in leg.end else P_in * inp.si
     if proc == "compressor" and P2 <= P_in:
-        return at(inp, f"the compressor's end pressure ({P2 / 1e3:.6g} kPa) is not above its start "
-                       f"({P_in / 1e3:.6g} kPa)", "give an end pressure above the start, or use an expander or throttle")
+        return at(inp, f"the compressor's end pressure ({say(P2, 'Pa', job.units, 6)}) is not above its start "
+                       f"({say(P_in, 'Pa', job.units, 6)})",
+                  "give an end pressure above the start, or use an expander or throttle")
     if proc in ("expander", "throttle") and P2 >= P_in:
-        return at(inp, f"the {proc}'s end pressure ({P2 / 1e3:.6g} kPa) is not below its start ({P_in / 1e3:.6g} kPa)",
+        return at(inp, f"the {proc}'s end pressure ({say(P2, 'Pa', job.units, 6)}) is not below its start "
+                       f"({say(P_in, 'Pa', job.units, 6)})",
                   "give an end pressure below the start (pressure_ratio is end/start, below 1 for an expansion)")
     return None

@@ -86,6 +86,7 @@ class _Validator(Reader):
         calc = self.title_block(top.get("calc"))
         system = self.enum(top.get("system"), ("closed", "flow"), default="closed")
         unit_system = self.enum(top.get("units"), ("SI", "US"), default="SI")
+        self.system = unit_system or "SI"
         site = self.site(top.get("site"))
         gas = self.gas(top.get("gas"))
         start = self.start(top.get("start"), system)
@@ -160,7 +161,7 @@ class _Validator(Reader):
             atm = self.quantity(m["atmosphere"], "pressure", allow_gauge=False)
             if atm is not None:
                 if not 30e3 <= atm.si <= 110e3:
-                    self.add(m["atmosphere"], f"an atmosphere of {atm.si / 1e3:.4g} kPa is not a site atmosphere",
+                    self.add(m["atmosphere"], f"an atmosphere of {units.say(atm.si, 'Pa', self.system, 4)} is not a site atmosphere",
                              "give the absolute barometric pressure at the site, 30 to 110 kPa")
                     return Site(None, "not given")
                 self.atm = atm.si
@@ -294,7 +295,7 @@ class _Validator(Reader):
         name = self.text(m.get("name"), required=True, what="leg name")
         pnode = m.get("process")
         pval = str(pnode.value).strip().casefold() if pnode is not None and pnode.kind == "scalar" else ""
-        if not flow and pval in FLOW_PROCESSES and pval not in CLOSED_PROCESSES:
+        if not flow and pnode is not None and pval in FLOW_PROCESSES and pval not in CLOSED_PROCESSES:
             self.add(pnode, f"'{pnode.value}' is a steady-flow process, and this job is a closed system",
                      "set system: flow (and give a mass_flow or volume flow at the start), or use a closed-system "
                      "process: " + ", ".join(CLOSED_PROCESSES))

@@ -8,8 +8,9 @@ The engine judges them against the results (:mod:`calcdoc.engine.checks`).
 from __future__ import annotations
 
 import difflib
+from collections.abc import Callable, Iterable
 
-from .model import LimitSpec
+from .model import LegSpec, LimitSpec
 from .quantities import Quantity, applies, applies_text, quantity_named, quantity_problem
 from .reader import Reader
 from .source import Node
@@ -22,7 +23,7 @@ LIMIT_KEYS = ("name", "quantity", "at", "max", "min", "margin", "basis")
 class Places:
     """The legs and state labels of a job, to resolve ``at:`` names and check quantities against them."""
 
-    def __init__(self, legs):
+    def __init__(self, legs: Iterable[LegSpec]) -> None:
         self.legs = [leg.name for leg in legs]
         self.procs = {leg.name: leg.process for leg in legs}
         states = 1
@@ -44,7 +45,7 @@ class Places:
         """The names a place may take, for a message."""
         return (f"legs: {', '.join(repr(n) for n in self.legs)}; states: {', '.join(self.labels)}")
 
-    def check(self, q: Quantity, names: list[tuple[str, Node]], add) -> None:
+    def check(self, q: Quantity, names: list[tuple[str, Node]], add: Callable[..., None]) -> None:
         """Each named place exists and can carry the quantity."""
         for name, node in names:
             if q.scope == "total":
@@ -66,7 +67,7 @@ class Places:
             add(node, f"this job has no leg or state named '{name}'", f"{hint}{self.valid()}")
 
 
-def names_of(node: Node | None, add) -> list[tuple[str, Node]]:
+def names_of(node: Node | None, add: Callable[..., None]) -> list[tuple[str, Node]]:
     """The names in an ``at:`` value: one name or a list of names (numbers are state labels)."""
     if node is None:
         return []
@@ -115,8 +116,9 @@ def read_limits(r: Reader, items: list[Node], system: str, places: Places) -> tu
         for key in ("max", "min"):
             if key in m and q is not None:
                 bounds[key] = r.quantity(m[key], q.kind, positive=False, record=False)
-        if bounds.get("max") and bounds.get("min") and bounds["min"].si > bounds["max"].si:
-            r.add(item, f"min ({bounds['min'].entered}) is above max ({bounds['max'].entered})",
+        lo, hi = bounds.get("min"), bounds.get("max")
+        if lo is not None and hi is not None and lo.si > hi.si:
+            r.add(item, f"min ({lo.entered}) is above max ({hi.entered})",
                   "give a min below the max")
         margin = None
         if "margin" in m and q is not None:

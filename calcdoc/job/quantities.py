@@ -45,7 +45,8 @@ class Quantity:
         return {"temperature": "temperature_difference", "pressure": "pressure_difference"}.get(self.kind, self.kind)
 
 
-def _q(name, kind, scope, attr, systems=BOTH, symbol="", title="", sign=1.0, on=()):
+def _q(name: str, kind: str, scope: str, attr: str, systems: tuple[str, ...] = BOTH, symbol: str = "", title: str = "",
+       sign: float = 1.0, on: tuple[str, ...] = ()) -> Quantity:
     return Quantity(name, kind, scope, attr, systems, symbol or attr, title or name.replace("_", " "), sign, on)
 
 

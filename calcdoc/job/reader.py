@@ -51,6 +51,7 @@ class Reader:
         self.inputs: list[Input] = []
         self.where: dict[str, tuple[int, int]] = {}
         self.atm = atmosphere
+        self.system = "SI"         # the job's unit system, for values in messages
         self.hints = required_hints or {}
 
     def add(self, node: Node, found: str, valid: str = "", path: str | None = None) -> None:
@@ -192,8 +193,9 @@ class Reader:
             return None
         if positive and parsed.si <= 0.0:
             if kind == "pressure" and parsed.gauge and self.atm is not None:
-                self.add(node, f"'{parsed.entered}' is below full vacuum (absolute pressure {parsed.si / 1e3:.4g} kPa "
-                         f"with the site atmosphere of {self.atm / 1e3:.4g} kPa)",
+                self.add(node, f"'{parsed.entered}' is below full vacuum (absolute pressure "
+                         f"{units.say(parsed.si, 'Pa', self.system, 4)} with the site atmosphere of "
+                         f"{units.say(self.atm, 'Pa', self.system, 4)})",
                          "a gauge pressure cannot be lower than minus the atmospheric pressure")
             elif kind == "temperature":
                 self.add(node, f"'{parsed.entered}' is at or below absolute zero",

@@ -5,6 +5,9 @@ the validation cannot drift apart; the validators stay the authority (units, ran
 """
 from __future__ import annotations
 
+from collections.abc import Iterable
+from typing import Any
+
 from . import jobfile, sweep
 from .limits import LIMIT_KEYS
 from .quantities import ALIASES, QUANTITIES
@@ -18,11 +21,11 @@ FLOW_START_KEYS = ("pressure", "temperature", "mass_flow", "molar_flow", "volume
                    "standard_pressure", "standard_temperature")
 
 
-def _qty(desc: str) -> dict:
+def _qty(desc: str) -> dict[str, Any]:
     return {"type": ["string", "number"], "description": desc}
 
 
-def _obj(keys, props: dict, required=(), desc: str = "") -> dict:
+def _obj(keys: Iterable[str], props: dict[str, Any], required: Iterable[str] = (), desc: str = "") -> dict[str, Any]:
     out = {"type": "object", "properties": {k: props.get(k, {}) for k in keys}, "additionalProperties": False}
     if required:
         out["required"] = list(required)
@@ -31,7 +34,7 @@ def _obj(keys, props: dict, required=(), desc: str = "") -> dict:
     return out
 
 
-def job_schema() -> dict:
+def job_schema() -> dict[str, Any]:
     text = {"type": "string"}
     names = {"type": ["string", "number"]}
     at = {"description": "leg names or state labels; default: everywhere the quantity exists",
@@ -48,7 +51,7 @@ def job_schema() -> dict:
     for key in jobfile._FLOW_LEG_KEYS:
         leg_props.setdefault(key, {"description": f"{key.replace('_', ' ')} (steady-flow legs)"})
 
-    def legs_of(keys, processes):
+    def legs_of(keys: Iterable[str], processes: Iterable[str]) -> dict[str, Any]:
         props = dict(leg_props, process={"enum": list(processes)})
         return {"type": "array", "minItems": 1, "items": _obj(keys, props, ("name", "process", "end"))}
 

@@ -8,7 +8,7 @@ from __future__ import annotations
 
 import datetime as _dt
 from dataclasses import dataclass
-from typing import Any
+from typing import Any, NoReturn
 
 from ..errors import JobError, Problem
 
@@ -102,7 +102,7 @@ _CONTEXT_AT_FAULT = ("while scanning a simple key", "while parsing a flow mappin
                      "while scanning a quoted scalar")
 
 
-def _syntax_problem(exc, name: str) -> Problem:
+def _syntax_problem(exc: Any, name: str) -> Problem:
     """A YAML syntax error as a Problem at the place to fix, in words an engineer can act on.
 
     PyYAML gives the place it noticed the error (problem mark) and the construct it was reading
@@ -163,10 +163,10 @@ class _Builder:
         self.active: set[int] = set()
         self.constructor = yaml.constructor.SafeConstructor()
 
-    def fail(self, node, path: str, found: str, valid: str):
+    def fail(self, node: Any, path: str, found: str, valid: str) -> NoReturn:
         raise JobError([Problem(self.name, node.start_mark.line + 1, node.start_mark.column + 1, path, found, valid)])
 
-    def build(self, node, path: str, depth: int) -> Node:
+    def build(self, node: Any, path: str, depth: int) -> Node:
         import yaml
 
         self.count += 1
@@ -268,4 +268,4 @@ def dump(data: Any, **options: Any) -> str:
     """Plain data written as YAML text (for job files made by the program, e.g. verification cases)."""
     import yaml
 
-    return yaml.safe_dump(data, sort_keys=False, allow_unicode=True, **options)
+    return str(yaml.safe_dump(data, sort_keys=False, allow_unicode=True, **options))

@@ -190,9 +190,9 @@ def read_sweep(r: Reader, tree: Node, system: str, places: Places, inputs: list[
             qname, at = r.text(fm["quantity"], required=True, what="quantity name"), names_of(fm.get("at"), r.add)
             where, path = (fm["at"].where, fm["at"].path) if "at" in fm else (it.where, it.path)
         q = quantity_named(qname) if qname else None
-        why = quantity_problem(q, qname, system) if qname else None
-        if why:
-            r.add(it if it.kind == "scalar" else it.value["quantity"], *why)
+        bad = quantity_problem(q, qname, system) if qname else None
+        if bad:
+            r.add(it if it.kind == "scalar" else it.value["quantity"], *bad)
             continue
         if q is not None:
             places.check(q, at, r.add)

@@ -36,7 +36,7 @@ def point_jobs(job: Job) -> Iterator[tuple[int, str, Job]]:
         yield k, entered, pj
 
 
-def at_point(job: Job, k: int, found, valid: str = "narrow the sweep to values this job can be computed at") -> Problem:
+def at_point(job: Job, k: int, found: str | tuple[str, ...] | PhysicsError, valid: str = "narrow the sweep to values this job can be computed at") -> Problem:
     """A problem of sweep point k, located at the value the point came from; ``found`` is text, the texts of
     the point's own problems, or a physics error."""
     sw = job.sweep

@@ -170,7 +170,7 @@ def say(item: Finding | str, system: str = "SI") -> str:
 def gas_text(gas) -> str:
     """The gas model in words: "Nitrogen, real gas (Helmholtz equation of state, CoolProp HEOS)"."""
     if gas.model == "ideal":
-        return f"{gas.name} as an ideal gas, k = {gas.k:.5g}, M = {gas.M * 1e3:.5g} g/mol"
+        return f"{gas.name} as an ideal gas, k = {gas.k:.5g}, M = {phrase('{M:kg/mol~5}', {'M': gas.M})}"
     return f"{gas.name}, real gas (Helmholtz equation of state, CoolProp HEOS)"
 
 
