@@ -58,12 +58,15 @@ class Verification:
 
     @property
     def ok(self) -> bool:
+        """True when there are findings and every one of them is ok."""
         return bool(self.findings) and all(f.ok for f in self.findings)
 
     def add(self, ok: bool, text: str) -> None:
+        """Record one finding."""
         self.findings.append(Finding(ok, text))
 
     def lines(self) -> list[str]:
+        """The findings as lines for the terminal, with the verdict last."""
         out = [f"{self.pdf}: attached job file {self.job_name or '(none)'}, sha256 {self.job_sha256 or '(none)'}"]
         out += [f"  {'ok' if f.ok else 'MISMATCH'}: {f.text}" for f in self.findings]
         out.append(f"{'verified' if self.ok else 'NOT VERIFIED'}: {self.pdf}")

@@ -17,6 +17,7 @@ from .diagnose import fluid_problems
 __all__ = ["job_basis", "make_gas", "saturation_near", "shared_real_gas", "site_calcs", "software_versions"]
 
 def software_versions() -> dict[str, str]:
+    """The versions of calcdoc and the libraries it computes and renders with."""
     out = {"calcdoc": __version__}
     for dist in ("CoolProp", "pint", "PyYAML", "Jinja2", "matplotlib", "weasyprint", "numpy"):
         try:

@@ -41,6 +41,7 @@ class FlowResults(Results):
     totals: tuple[Calc, ...] = ()
 
     def all_calcs(self):
+        """Every calc of the job, the train totals last."""
         yield from super().all_calcs()
         yield from self.totals
 

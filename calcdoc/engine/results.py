@@ -60,6 +60,7 @@ class Results:
 
     @property
     def passed(self) -> bool:
+        """True when every design check passes (and when there is none)."""
         return all(c.status == "pass" for c in self.checks)
 
     def methods_used(self) -> list[str]:
@@ -70,6 +71,7 @@ class Results:
         return list(seen)
 
     def all_calcs(self):
+        """Every calc of the job in order: start, mass or flow, legs, checks."""
         yield from self.start_calcs
         if self.mass is not None:
             yield self.mass
@@ -88,6 +90,7 @@ def q(value: float | None, unit: str) -> dict:
 
 
 def state_json(rec: StateRecord) -> dict:
+    """One state in the results contract."""
     s = rec.state
     out = {"label": rec.label, "P": q(s.P, "Pa"), "T": q(s.T, "K"), "v": q(s.v, "m**3/kg"), "rho": q(s.rho, "kg/m**3"),
            "u": q(s.u, "J/kg"), "h": q(s.h, "J/kg"), "s": q(s.s, "J/(kg*K)"), "Z": q(s.Z, ""), "phase": s.phase}
@@ -101,6 +104,7 @@ def state_json(rec: StateRecord) -> dict:
 
 
 def to_json(res: Results) -> dict:
+    """The results contract as data (SI values; findings still as codes, worded by the report's writer)."""
     job = res.job
     t = job.calc
     legs = []

@@ -10,13 +10,14 @@ from __future__ import annotations
 import dataclasses
 import datetime as _dt
 import hashlib
+from dataclasses import fields
 from pathlib import Path
 
 from .. import units
 from ..errors import JobError, Problem
 from .flowopts import FLOW_OPTION_KEYS, chain_problems, read_options
 from .limits import Places, read_limits
-from .model import GasSpec, Input, Job, LegSpec, Site, StartSpec, TitleBlock
+from .model import GasSpec, Input, Job, LegSpec, Site, StartSpec, TitleBlock, keys_of
 from .reader import Reader, describe as _describe
 from .source import MAX_BYTES as _MAX_BYTES, Node, decode, leaves, load as _load_yaml
 from .sweep import read_sweep
@@ -149,7 +150,7 @@ class _Validator(Reader):
     def site(self, node: Node | None) -> Site:
         if node is None:
             return Site(None, "not given")
-        m = self.mapping(node, ("atmosphere", "elevation"), what="the site")
+        m = self.mapping(node, keys_of(Site), what="the site")
         if "atmosphere" in m and "elevation" in m:
             self.add(node, "both atmosphere and elevation are given", "give one: the measured atmosphere or the elevation")
         if "atmosphere" in m:
@@ -181,7 +182,7 @@ class _Validator(Reader):
     def gas(self, node: Node | None) -> GasSpec | None:
         if node is None:
             return None
-        m = self.mapping(node, ("fluid", "mixture", "model", "k", "molar_mass", "R"), required=("model",), what="the gas")
+        m = self.mapping(node, keys_of(GasSpec), required=("model",), what="the gas")
         model = self.enum(m.get("model"), ("real", "ideal"))
         fluid = self.text(m.get("fluid")) or None
         mixture: list[tuple[str, float]] = []
@@ -228,21 +229,16 @@ class _Validator(Reader):
                          "add k: 1.4 and molar_mass: 28.97 g/mol, or name the fluid to take them from")
         if model is None:
             return None
-        return GasSpec(model, fluid, tuple(mixture), k, molar_mass, R)
+        return GasSpec(model=model, fluid=fluid, mixture=tuple(mixture), k=k, molar_mass=molar_mass, R=R)
 
     def start(self, node: Node | None, system: str | None) -> StartSpec | None:
         if node is None:
             return None
-        closed_keys = ("pressure", "temperature", "volume", "mass")
-        flow_keys = ("pressure", "temperature", "mass_flow", "molar_flow", "volume_flow", "standard_volume_flow",
-                     "standard_pressure", "standard_temperature")
-        keys = flow_keys if system == "flow" else closed_keys
+        keys = keys_of(StartSpec, "flow" if system == "flow" else "closed")
         m = self.mapping(node, keys, required=("pressure", "temperature"), what="the start state")
         P = self.quantity(m.get("pressure"), "pressure")
         T = self.quantity(m.get("temperature"), "temperature")
-        kinds = {"volume": "volume", "mass": "mass", "mass_flow": "mass_flow", "molar_flow": "molar_flow",
-                 "volume_flow": "volume_flow", "standard_volume_flow": "standard_volume_flow",
-                 "standard_pressure": "pressure", "standard_temperature": "temperature"}
+        kinds = {f.name: f.metadata["kind"] for f in fields(StartSpec) if f.name not in ("pressure", "temperature")}
         vals = {k: self.quantity(m.get(k), kinds[k]) for k in kinds if k in keys}
         amount = [k for k in (("mass_flow", "molar_flow", "volume_flow", "standard_volume_flow") if system == "flow"
                               else ("volume", "mass")) if k in m]
@@ -372,10 +368,9 @@ class _Validator(Reader):
 
 
 _TOP_KEYS = ("calcdoc", "calc", "units", "site", "gas", "system", "start", "legs", "limits", "assumptions", "sweep")
-_CALC_KEYS = ("number", "title", "project", "client", "purpose", "revision", "date", "prepared_by", "checked_by",
-              "approved_by", "drawings", "history")
+_CALC_KEYS = keys_of(TitleBlock)
 _CLOSED_LEG_KEYS = ("name", "process", "n", "end", "note")
-_FLOW_LEG_KEYS = ("name", "process", "n", "end", "note", "efficiency", "pressure_drop", "mechanical_efficiency", "staging")
+_FLOW_LEG_KEYS = _CLOSED_LEG_KEYS + FLOW_OPTION_KEYS
 _REQUIRED_HINT = {
     "calcdoc": "start the file with 'calcdoc: 1' (the job-file schema version)",
     "calc": "add the title block: calc: {number, title, revision, date, ...}",

@@ -9,13 +9,33 @@ import time, and ``dataclasses.fields`` is enough to generate the JSON Schema al
 """
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import MISSING, dataclass, field, fields
+from typing import Any
 
 from ..errors import Problem
 from .quantities import Quantity
 
 __all__ = ["Drop", "FollowSpec", "GasSpec", "Input", "Job", "LegOptions", "LegSpec", "LimitSpec", "Site",
            "Staging", "StartSpec", "SweepSpec", "TitleBlock"]
+
+
+def key(kind: str, desc: str, systems: tuple[str, ...] = ("closed", "flow"), required: bool = False) -> Any:
+    """A field of the model that is a key of the job file: the kind of its value (a key of
+    :data:`calcdoc.units.DIMENSIONS`, or "text", "date", "number", "list"), what it is, the systems that take it.
+    The validator and the JSON Schema (:mod:`calcdoc.job.schema`) both read these."""
+    default: Any = MISSING if required else None
+    return field(default=default, metadata={"kind": kind, "desc": desc, "systems": systems})
+
+
+def keys_of(cls: type, system: str | None = None) -> tuple[str, ...]:
+    """The job-file keys of a model class (in field order), those a system takes when ``system`` is given."""
+    return tuple(f.name for f in fields(cls) if "kind" in f.metadata
+                 and (system is None or system in f.metadata["systems"]))
+
+
+def text_key(desc: str, default: Any = "", kind: str = "text") -> Any:
+    """A text field of the model that is a key of the job file."""
+    return field(default=default, metadata={"kind": kind, "desc": desc, "systems": ("closed", "flow")})
 
 
 @dataclass(frozen=True)
@@ -45,22 +65,22 @@ class Input:
         return self.kind == "pressure" and len(parts) == 2 and parts[1].strip() in ("psi", "kgf/cm2", "kg/cm2")
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, kw_only=True)
 class TitleBlock:
     """The calc's title block and revision history."""
 
-    number: str
-    title: str
-    project: str
-    revision: str
-    date: str
-    client: str = ""
-    purpose: str = ""
-    prepared_by: str = ""
-    checked_by: str = ""
-    approved_by: str = ""
-    drawings: tuple[str, ...] = ()
-    history: tuple[tuple[str, str, str], ...] = ()   # (revision, date, description)
+    number: str = text_key("calc number", MISSING)
+    title: str = text_key("calc title", MISSING)
+    project: str = text_key("project")
+    revision: str = text_key("revision of this issue, e.g. A", MISSING)
+    date: str = text_key("date of this revision, YYYY-MM-DD", MISSING, "date")
+    client: str = text_key("client")
+    purpose: str = text_key("what the calculation establishes")
+    prepared_by: str = text_key("preparer")
+    checked_by: str = text_key("checker")
+    approved_by: str = text_key("approver")
+    drawings: tuple[str, ...] = text_key("drawings and documents this calc supports", (), "list")
+    history: tuple[tuple[str, str, str], ...] = text_key("revision table: revision, date, description", (), "history")
 
 
 @dataclass(frozen=True)
@@ -69,36 +89,38 @@ class Site:
 
     P_atm: float | None          # absolute atmospheric pressure [Pa], None when not given
     source: str                  # "given", "standard atmosphere at elevation" or "not given"
-    atmosphere: Input | None = None
-    elevation: Input | None = None
+    atmosphere: Input | None = key("pressure", "absolute barometric pressure at the site")
+    elevation: Input | None = key("length", "elevation above sea level (standard atmosphere)")
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, kw_only=True)
 class GasSpec:
     """The gas: a fluid or a mixture, with the real (CoolProp) or the ideal-gas model."""
 
-    model: str                                  # "real" or "ideal"
-    fluid: str | None = None
-    mixture: tuple[tuple[str, float], ...] = ()  # (component, mole fraction)
-    k: Input | None = None
-    molar_mass: Input | None = None
-    R: Input | None = None
+    model: str = text_key("real (CoolProp) or ideal", MISSING, "choice")
+    fluid: str | None = text_key("a CoolProp fluid name", None)
+    mixture: tuple[tuple[str, float], ...] = text_key("component: mole fraction", (), "mixture")
+    k: Input | None = key("dimensionless", "heat capacity ratio (ideal gas)")
+    molar_mass: Input | None = key("molar_mass", "molar mass (ideal gas)")
+    R: Input | None = key("specific_gas_constant", "specific gas constant (ideal gas)")
 
 
 @dataclass(frozen=True)
 class StartSpec:
     """State 1 and the amount of gas: a mass or volume (closed) or a flow (steady flow)."""
 
-    pressure: Input
-    temperature: Input
-    volume: Input | None = None
-    mass: Input | None = None
-    mass_flow: Input | None = None
-    molar_flow: Input | None = None
-    volume_flow: Input | None = None
-    standard_volume_flow: Input | None = None
-    standard_pressure: Input | None = None
-    standard_temperature: Input | None = None
+    pressure: Input = key("pressure", "absolute pressure, or gauge with a gauge marker (barg, psig)", required=True)
+    temperature: Input = key("temperature", "temperature", required=True)
+    volume: Input | None = key("volume", "volume of the gas", ("closed",))
+    mass: Input | None = key("mass", "mass of the gas", ("closed",))
+    mass_flow: Input | None = key("mass_flow", "mass flow", ("flow",))
+    molar_flow: Input | None = key("molar_flow", "molar flow", ("flow",))
+    volume_flow: Input | None = key("volume_flow", "actual volume flow at the start state", ("flow",))
+    standard_volume_flow: Input | None = key("standard_volume_flow", "volume flow at stated reference conditions",
+                                             ("flow",))
+    standard_pressure: Input | None = key("pressure", "reference pressure of the standard volume flow", ("flow",))
+    standard_temperature: Input | None = key("temperature", "reference temperature of the standard volume flow",
+                                             ("flow",))
 
 
 @dataclass(frozen=True)

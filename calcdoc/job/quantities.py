@@ -38,10 +38,12 @@ class Quantity:
 
     @property
     def unit(self) -> str:
+        """The SI unit of the quantity."""
         return units.DIMENSIONS[self.kind]
 
     @property
     def margin_kind(self) -> str:
+        """The kind of quantity a margin on it is (a difference for temperatures and pressures)."""
         return {"temperature": "temperature_difference", "pressure": "pressure_difference"}.get(self.kind, self.kind)
 
 
@@ -123,6 +125,7 @@ def applies(q: Quantity, process: str) -> bool:
 
 
 def applies_text(q: Quantity) -> str:
+    """Where a trade quantity applies, for a message."""
     return f"{q.name} applies to {' and '.join(p + ' legs' for p in q.on)} (and reversible flow legs)"
 
 

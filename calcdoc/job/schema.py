@@ -1,24 +1,53 @@
 """The JSON Schema of the job file, for editors that validate and complete YAML (``calcdoc schema``).
 
-Built from the validators' own key lists (jobfile.py, checks.py, sweep.py) so that the schema and
-the validation cannot drift apart; the validators stay the authority (units, ranges, cross-checks).
+Generated from the job model: the sections with typed fields (title block, site, gas, start) from the
+fields of :mod:`calcdoc.job.model` and their metadata (kind, description, the systems that take them), the
+others from the key tables their readers validate with (legs, flow options, limits, sweep), so that the
+schema and the validation cannot drift apart; the validators stay the authority (units, ranges, cross-checks).
 """
 from __future__ import annotations
 
 from collections.abc import Iterable
+from dataclasses import MISSING, fields
 from typing import Any
 
 from . import jobfile, sweep
+from .flowopts import INTERCOOLER_KEYS, STAGING_KEYS
 from .limits import LIMIT_KEYS
+from .model import GasSpec, Site, StartSpec, TitleBlock, keys_of
 from .quantities import ALIASES, QUANTITIES
 
 __all__ = ["job_schema"]
 
 SCHEMA_ID = "https://calcdoc.invalid/schema/job-1.json"
-# The start keys are local to the validator's start(); mirrored here (a test checks both agree).
-CLOSED_START_KEYS = ("pressure", "temperature", "volume", "mass")
-FLOW_START_KEYS = ("pressure", "temperature", "mass_flow", "molar_flow", "volume_flow", "standard_volume_flow",
-                   "standard_pressure", "standard_temperature")
+CLOSED_START_KEYS = keys_of(StartSpec, "closed")
+FLOW_START_KEYS = keys_of(StartSpec, "flow")
+_TEXT = {"type": "string"}
+_BY_KIND: dict[str, dict[str, Any]] = {
+    "text": _TEXT, "date": {"type": "string", "pattern": "^[0-9]{4}-[0-9]{2}-[0-9]{2}$"},
+    "list": {"type": "array", "items": _TEXT},
+    "history": {"type": "array", "items": {"type": "object", "additionalProperties": False,
+                                           "properties": {"revision": _TEXT, "date": _TEXT, "description": _TEXT},
+                                           "required": ["revision", "date", "description"]}},
+    "choice": {"enum": ["real", "ideal"]},
+    "mixture": {"type": "object", "additionalProperties": {"type": "number", "exclusiveMinimum": 0, "maximum": 1}},
+    "dimensionless": {"type": "number"},
+}
+
+
+def _model_props(cls: type) -> dict[str, Any]:
+    """The schema of each job-file key of a model class, from its field's kind and description."""
+    out: dict[str, Any] = {}
+    for f in fields(cls):
+        if "kind" in f.metadata:
+            out[f.name] = {**_BY_KIND.get(f.metadata["kind"], {"type": ["string", "number"]}),
+                           "description": f.metadata["desc"]}
+    return out
+
+
+def _required(cls: type) -> tuple[str, ...]:
+    return tuple(f.name for f in fields(cls) if "kind" in f.metadata and f.default is MISSING
+                 and f.default_factory is MISSING)
 
 
 def _qty(desc: str) -> dict[str, Any]:
@@ -35,6 +64,7 @@ def _obj(keys: Iterable[str], props: dict[str, Any], required: Iterable[str] = (
 
 
 def job_schema() -> dict[str, Any]:
+    """The JSON Schema (draft 2020-12) of the job file."""
     text = {"type": "string"}
     names = {"type": ["string", "number"]}
     at = {"description": "leg names or state labels; default: everywhere the quantity exists",
@@ -48,6 +78,21 @@ def job_schema() -> dict[str, Any]:
         "end": _obj(tuple(dict.fromkeys(jobfile.CLOSED_TARGETS + jobfile.FLOW_TARGETS)), target_props,
                     desc="the end target of the leg"),
     }
+    efficiency = {"type": "object", "additionalProperties": False, "minProperties": 1, "maxProperties": 1,
+                  "properties": {"polytropic": _qty("polytropic efficiency, 0 to 1 or a percentage"),
+                                 "isentropic": _qty("isentropic efficiency, 0 to 1 or a percentage")}}
+    leg_props.update({
+        "efficiency": efficiency,
+        "mechanical_efficiency": _qty("mechanical efficiency of the machine, 0 to 1 or a percentage"),
+        "pressure_drop": _qty("pressure drop: a pressure difference or a percentage of the inlet pressure"),
+        "staging": _obj(STAGING_KEYS, {
+            "stages": {"type": "integer", "minimum": 1, "maximum": 12},
+            "max_discharge_temperature": _qty("discharge-temperature limit for the fewest-stages search"),
+            "max_stages": {"type": "integer", "minimum": 1, "maximum": 12},
+            "intercooler": _obj(INTERCOOLER_KEYS, {"temperature": _qty("intercooler outlet temperature"),
+                                                   "pressure_drop": _qty("intercooler pressure drop")},
+                                ("temperature",))}, ("intercooler",), "a compressor split into stages"),
+    })
     for key in jobfile._FLOW_LEG_KEYS:
         leg_props.setdefault(key, {"description": f"{key.replace('_', ' ')} (steady-flow legs)"})
 
@@ -55,25 +100,13 @@ def job_schema() -> dict[str, Any]:
         props = dict(leg_props, process={"enum": list(processes)})
         return {"type": "array", "minItems": 1, "items": _obj(keys, props, ("name", "process", "end"))}
 
-    start_props = {k: _qty(k.replace("_", " ")) for k in FLOW_START_KEYS + CLOSED_START_KEYS}
+    start_props = _model_props(StartSpec)
     props = {
         "calcdoc": {"const": jobfile.SCHEMA_VERSION, "description": "job-file schema version"},
-        "calc": _obj(jobfile._CALC_KEYS, {
-            **{k: text for k in jobfile._CALC_KEYS},
-            "date": {"type": "string", "description": "YYYY-MM-DD"},
-            "drawings": {"type": "array", "items": text},
-            "history": {"type": "array", "items": _obj(("revision", "date", "description"),
-                                                       {"revision": text, "date": text, "description": text},
-                                                       ("revision", "date", "description"))},
-        }, ("number", "title", "revision", "date"), "the title block"),
+        "calc": _obj(keys_of(TitleBlock), _model_props(TitleBlock), _required(TitleBlock), "the title block"),
         "units": {"enum": ["SI", "US"]},
-        "site": _obj(("atmosphere", "elevation"), {"atmosphere": _qty("absolute barometric pressure"),
-                                                   "elevation": _qty("elevation above sea level")}),
-        "gas": _obj(("fluid", "mixture", "model", "k", "molar_mass", "R"), {
-            "fluid": text, "model": {"enum": ["real", "ideal"]},
-            "mixture": {"type": "object", "additionalProperties": {"type": "number", "exclusiveMinimum": 0, "maximum": 1}},
-            "k": {"type": "number"}, "molar_mass": _qty("molar mass"), "R": _qty("specific gas constant")},
-            ("model",)),
+        "site": _obj(keys_of(Site), _model_props(Site)),
+        "gas": _obj(keys_of(GasSpec), _model_props(GasSpec), _required(GasSpec)),
         "system": {"enum": ["closed", "flow"]},
         "start": _obj(tuple(dict.fromkeys(CLOSED_START_KEYS + FLOW_START_KEYS)), start_props,
                       ("pressure", "temperature"), "state 1"),

@@ -40,6 +40,7 @@ class Node:
 
     @property
     def where(self) -> tuple[int, int]:
+        """Line and column of the key that introduced the value, else of the value."""
         return (self.key_line, self.key_col) if self.key_line else (self.line, self.col)
 
 

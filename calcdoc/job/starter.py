@@ -113,4 +113,5 @@ STARTERS = {"closed": _CLOSED, "flow": _FLOW}
 
 
 def starter(system: str) -> str:
+    """The commented starter job file of a system."""
     return STARTERS[system]

@@ -37,6 +37,7 @@ class Calc:
     difference: bool = False   # a temperature difference (shown in K or °R, never °C/°F)
 
     def as_json(self) -> dict:
+        """The value as a quantity of the results file."""
         return {"value": self.value, "unit": self.unit}
 
     def trace(self) -> dict:

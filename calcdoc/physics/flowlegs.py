@@ -38,12 +38,15 @@ class Ctx:
 
     @property
     def ideal(self) -> bool:
+        """True for the ideal-gas model."""
         return self.eos is None
 
     def point(self, P: float, T: float) -> Point | State:
+        """The state at (P, T), with cp and (∂v/∂T)_P for a real gas."""
         return self.eos.pt(P, T) if self.eos is not None else self.gas.state_PT(P, T)
 
     def state(self, P: float, T: float) -> State:
+        """The state at (P, T)."""
         p = self.point(P, T)
         return p.state if isinstance(p, Point) else p
 
@@ -305,6 +308,7 @@ def _schultz(i, s1, s2, s2s, Hs, w, eta_p, comp, n, calcs, facts) -> dict[str, C
 # -- coolers, heaters, throttles ------------------------------------------------------------------
 def heat_exchanger(ctx: Ctx, name: str, process: str, i: int, s1: State, P2: float, T2: float,
                    drop_calc: Calc | None) -> LegResult:
+    """A cooler or heater from s1 to (P2, T2): q_in = h2 − h1, no shaft work (first law for steady flow)."""
     j = i + 1
     gas = ctx.gas
     path = [s1] + [ctx.state(s1.P + (P2 - s1.P) * x, s1.T + (T2 - s1.T) * x)
@@ -326,6 +330,7 @@ def heat_exchanger(ctx: Ctx, name: str, process: str, i: int, s1: State, P2: flo
 
 
 def throttle(ctx: Ctx, name: str, i: int, s1: State, P2: float) -> LegResult:
+    """A throttle from s1 to P2: adiabatic, no work, h2 = h1 (the outlet may be two-phase for a pure fluid)."""
     j = i + 1
     if ctx.ideal:
         s2 = ctx.gas.state_PT(P2, s1.T)

@@ -37,6 +37,7 @@ class State:
 
     @property
     def rho(self) -> float:
+        """Density [kg/m3]."""
         return 1.0 / self.v
 
 
@@ -49,12 +50,29 @@ class Gas:
     eos_refs: tuple[str, ...] = ()
     eos_method: str = ""
 
-    def state_PT(self, P: float, T: float) -> State: raise NotImplementedError
-    def state_Pv(self, P: float, v: float) -> State: raise NotImplementedError
-    def state_Tv(self, T: float, v: float) -> State: raise NotImplementedError
-    def state_Ps(self, P: float, s: float) -> State: raise NotImplementedError
-    def state_vs(self, v: float, s: float) -> State: raise NotImplementedError
-    def state_Ph(self, P: float, h: float) -> State: raise NotImplementedError
+    def state_PT(self, P: float, T: float) -> State:
+        """The state at pressure P [Pa] and temperature T [K]."""
+        raise NotImplementedError
+
+    def state_Pv(self, P: float, v: float) -> State:
+        """The state at pressure P [Pa] and specific volume v [m3/kg]."""
+        raise NotImplementedError
+
+    def state_Tv(self, T: float, v: float) -> State:
+        """The state at temperature T [K] and specific volume v [m3/kg]."""
+        raise NotImplementedError
+
+    def state_Ps(self, P: float, s: float) -> State:
+        """The state at pressure P [Pa] and specific entropy s [J/(kg K)]."""
+        raise NotImplementedError
+
+    def state_vs(self, v: float, s: float) -> State:
+        """The state at specific volume v [m3/kg] and specific entropy s [J/(kg K)]."""
+        raise NotImplementedError
+
+    def state_Ph(self, P: float, h: float) -> State:
+        """The state at pressure P [Pa] and specific enthalpy h [J/kg]."""
+        raise NotImplementedError
 
     def saturation_curve(self, n: int = 60) -> list[tuple[float, float, float, float]] | None:
         """Points (T, P, v, s) of the saturated liquid and vapour lines, or None if not applicable."""
@@ -98,23 +116,29 @@ class IdealGas(Gas):
                      "gas (ideal)")
 
     def state_PT(self, P, T):
+        """The state at (P, T): v = R·T/P."""
         return self._make(P, T)
 
     def state_Pv(self, P, v):
+        """The state at (P, v): T = P·v/R."""
         return self._make(P, P * v / self.R)
 
     def state_Tv(self, T, v):
+        """The state at (T, v): P = R·T/v."""
         return self._make(self.R * T / v, T)
 
     def state_Ps(self, P, s):
+        """The state at (P, s): T = T_ref·exp((s + R·ln(P/P_ref))/cp)."""
         return self._make(P, T_REF * math.exp((s + self.R * math.log(P / P_REF)) / self.cp))
 
     def state_vs(self, v, s):
         # s = cv·ln(T/T_ref) − R·ln(R·T_ref/(v·P_ref))
+        """The state at (v, s): T from s = cv·ln(T/T_ref) − R·ln(R·T_ref/(v·P_ref))."""
         T = T_REF * math.exp((s + self.R * math.log(self.R * T_REF / (v * P_REF))) / self.cv)
         return self._make(self.R * T / v, T)
 
     def state_Ph(self, P, h):
+        """The state at (P, h): T = T_ref + h/cp."""
         return self._make(P, T_REF + h / self.cp)
 
 
@@ -203,9 +227,11 @@ class RealGas(Gas):
         return PhysicsError("eos.no_state", state=what, detail=_short(exc))
 
     def state_PT(self, P, T):
+        """The state at (P, T): a PT flash."""
         return self._update(self._CP.PT_INPUTS, P, T, {"P": P, "T": T})
 
     def state_Pv(self, P, v):
+        """The state at (P, v): a (density, pressure) flash; mixtures by Newton's method in T."""
         if self.pure:
             return self._update(self._CP.DmassP_INPUTS, 1.0 / v, P, {"P": P, "v": v})
         return self.state_Tv(self._T_of_Pv(P, v), v)
@@ -233,15 +259,19 @@ class RealGas(Gas):
         raise PhysicsError("eos.mixture_Pv", state={"P": P, "v": v})
 
     def state_Tv(self, T, v):
+        """The state at (T, v): a (density, temperature) flash."""
         return self._update(self._CP.DmassT_INPUTS, 1.0 / v, T, {"T": T, "v": v})
 
     def state_Ps(self, P, s):
+        """The state at (P, s): a (pressure, entropy) flash."""
         return self._update(self._CP.PSmass_INPUTS, P, s, {"P": P, "s": s})
 
     def state_vs(self, v, s):
+        """The state at (v, s): a (density, entropy) flash."""
         return self._update(self._CP.DmassSmass_INPUTS, 1.0 / v, s, {"v": v, "s": s})
 
     def state_Ph(self, P, h):
+        """The state at (P, h): an (enthalpy, pressure) flash."""
         return self._update(self._CP.HmassP_INPUTS, h, P, {"P": P, "h": h})
 
     def cp0_at(self, T: float) -> float:
@@ -251,6 +281,7 @@ class RealGas(Gas):
         return AS.cp0mass()
 
     def dew_temperature(self, P: float) -> float | None:
+        """Saturation temperature of a pure fluid at P [K]; None for a mixture or at or above the critical pressure."""
         if not self.pure or P >= self.Pc:
             return None
         try:
@@ -260,6 +291,7 @@ class RealGas(Gas):
             return None
 
     def saturation_curve(self, n: int = 60):
+        """Points (T, P, v, s) of the saturated liquid and vapour lines of a pure fluid (None for a mixture)."""
         if not self.pure:
             return None
         CP = self._CP

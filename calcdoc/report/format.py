@@ -20,6 +20,7 @@ _SUBST_UNITS = {"Pa": "kPa", "J": "kJ", "J/kg": "kJ/kg", "J/(kg*K)": "kJ/(kg*K)"
 
 
 def num(x: float | None, sig: int = 5, strip: bool = False) -> Markup:
+    """A number for the report, to ``sig`` significant figures."""
     return Markup(_num(x, sig, strip))
 
 
@@ -63,6 +64,7 @@ def qty(value: float | None, si_unit: str, system: str, sig: int = 5, difference
 
 
 def unit_of(si_unit: str, system: str, difference: bool = False) -> str:
+    """The display unit of an SI unit in the report's unit system."""
     if difference and si_unit.split("|")[0] == "K":
         return "K" if system == "SI" else "°R"
     return units.pretty_unit(units.display_unit(si_unit, system))

@@ -150,6 +150,7 @@ _BIBTEX_FILE = "CoolPropBibTeXLibrary.bib"
 
 
 def method(method_id: str) -> Method:
+    """The catalogue entry of a method id."""
     return METHODS[method_id]
 
 

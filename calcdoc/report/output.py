@@ -29,6 +29,7 @@ def write_atomic(target: Path, data: bytes) -> None:
 
 
 def output_paths(results, out_dir: str | os.PathLike) -> tuple[Path, Path]:
+    """The results JSON and PDF paths of a job in the output folder."""
     out = Path(out_dir)
     stem = safe_stem(results.job.calc.number, results.job.calc.revision)
     return out / f"{stem}.json", out / f"{stem}.pdf"

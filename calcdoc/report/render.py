@@ -51,10 +51,12 @@ ENGINE_ASSUMPTIONS = {
 
 
 def templates_dir() -> Path:
+    """The folder of the report templates (installed as calcdoc.templates)."""
     return Path(str(resources.files("calcdoc.templates")))
 
 
 def fonts_dir() -> Path:
+    """The fonts that ship with matplotlib (DejaVu), used by the report and its charts."""
     import matplotlib
 
     return Path(matplotlib.get_data_path()) / "fonts" / "ttf"
@@ -138,6 +140,7 @@ def _leg_of(job, path: str) -> str:
 
 
 def render_html(results) -> str:
+    """The calc package as HTML."""
     return _env().get_template("report.html").render(**context(results))
 
 

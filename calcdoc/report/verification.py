@@ -95,6 +95,7 @@ def _filters(env) -> None:
 
 
 def render_html(data: dict) -> str:
+    """The verification report as HTML."""
     env = _env()
     _filters(env)
     return env.get_template("selftest.html").render(**context(data))

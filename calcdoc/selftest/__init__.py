@@ -89,9 +89,11 @@ class Report:
 
     @property
     def passed(self) -> bool:
+        """True when every case passes."""
         return bool(self.results) and all(r.status == "pass" for r in self.results)
 
     def count(self, status: str) -> int:
+        """How many cases ended with a status."""
         return sum(1 for r in self.results if r.status == status)
 
 
@@ -266,6 +268,7 @@ def _num(x: Any) -> Any:
 
 
 def case_json(r: CaseResult, versions: dict[str, str]) -> dict:
+    """One case and its outcomes as data."""
     c = r.case
     values = dict(r.given)
     inputs: dict[str, Any] = {"given": [{"name": k, "expression": expr if isinstance(expr, str) else None,
@@ -295,6 +298,7 @@ def case_json(r: CaseResult, versions: dict[str, str]) -> dict:
 
 
 def to_json(report: Report) -> dict:
+    """The verification report as data."""
     versions = {dist: _reference.library_version(dist) for dist in _reference.LIBRARIES}
     n = len(report.results)
     return {
@@ -316,6 +320,7 @@ def to_json(report: Report) -> dict:
 
 
 def dumps(report: Report) -> str:
+    """The verification report as JSON text."""
     return json.dumps(to_json(report), indent=2, ensure_ascii=False, allow_nan=False, default=str) + "\n"
 
 

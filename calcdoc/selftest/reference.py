@@ -187,6 +187,7 @@ def _interpret(node: ast.AST, scope: dict):
 
 
 def library_version(dist: str) -> str:
+    """The installed version of a distribution, or 'not installed'."""
     try:
         return metadata.version(dist)
     except metadata.PackageNotFoundError:
