@@ -30,7 +30,7 @@ def run(job):
     from .report.notebook import results_html
 
     # the notebook view belongs to the report layer; the facade attaches it so the engine never imports it
-    Results._repr_html_ = results_html
+    setattr(Results, "_repr_html_", results_html)  # noqa: B010 (a method set on the class, not an attribute)
     return _run(job)
 
 

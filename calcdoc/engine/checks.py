@@ -17,13 +17,15 @@ from __future__ import annotations
 
 import dataclasses
 import math
+from typing import Any, NoReturn
 
 from ..errors import Finding, JobError
 from ..job.messages import problem
 from ..job.model import Job, LimitSpec
 from ..job.quantities import QUANTITIES, SIGNED, Quantity, applies, applies_text, place_text
 from ..physics.calc import Calc, Term
-from .results import Check
+from ..physics.closed import LegResult
+from .results import Check, Results, StateRecord
 
 __all__ = ["REL_TOL", "evaluate", "judge", "locations", "with_checks"]
 
@@ -31,7 +33,7 @@ REL_TOL = 1e-9
 
 
 # ----------------------------------------------------------------------------------------------
-def locations(job: Job, results, q: Quantity, at: tuple[str, ...], where: tuple[int, int] = (0, 0),
+def locations(job: Job, results: Results, q: Quantity, at: tuple[str, ...], where: tuple[int, int] = (0, 0),
               path: str = "") -> list[tuple[str, Calc]]:
     """The places a quantity is asked for and its value at each: [(place text, Calc)].
 
@@ -42,10 +44,10 @@ def locations(job: Job, results, q: Quantity, at: tuple[str, ...], where: tuple[
     recs = {rec.label: rec for rec in results.states}
     gas_method = getattr(results.gas, "eos_method", "") or "input"
 
-    def fail(code: str, **values):
+    def fail(code: str, **values: Any) -> NoReturn:
         raise JobError([problem(job, Finding(code, values, path), where=where)])
 
-    def at_state(rec):
+    def at_state(rec: StateRecord) -> Calc | None:
         if q.scope == "record":
             val = getattr(rec, q.attr, None)
             if val is None:
@@ -54,7 +56,7 @@ def locations(job: Job, results, q: Quantity, at: tuple[str, ...], where: tuple[
         return Calc(f"{q.symbol}_{rec.label}", getattr(rec.state, q.attr), q.unit, "",
                     "input" if rec.number == 1 and q.attr in ("P", "T") else gas_method)
 
-    def at_leg(leg):
+    def at_leg(leg: LegResult) -> tuple[Calc | None, str]:
         if q.scope in ("state", "record", "end"):
             rec = results.states[leg.i]
             c = at_state(rec)
@@ -134,9 +136,10 @@ def _attr_unit(attr: str) -> str:
     return {"P": "Pa", "v": "m**3/kg", "T": "K"}.get(attr, "")
 
 
-def judge(spec: LimitSpec, kind: str, where: str, value: Calc):
+def judge(spec: LimitSpec, kind: str, where: str, value: Calc) -> Check:
     """One check of one bound at one place."""
     lim = spec.max if kind == "max" else spec.min
+    assert lim is not None, "a bound is judged only where the limit gives it"
     x = value.value
     margin = (lim.si - x) if kind == "max" else (x - lim.si)
     pct = margin / abs(x) * 100.0 if x != 0 else float("nan")
@@ -151,9 +154,9 @@ def judge(spec: LimitSpec, kind: str, where: str, value: Calc):
                  required_entered=req_text, limit_entered=lim.entered)
 
 
-def evaluate(job: Job, results) -> tuple[Check, ...]:
+def evaluate(job: Job, results: Results) -> tuple[Check, ...]:
     """The checks of a job's limits against its results, in the order of the job file."""
-    out = []
+    out: list[Check] = []
     for spec in job.limits:
         locs = locations(job, results, spec.quantity, spec.at, spec.at_where, f"{spec.path}.at" if spec.at else spec.path)
         _refuse_negative(job, spec, locs)
@@ -191,7 +194,7 @@ def _refuse_negative(job: Job, spec: LimitSpec, locs: list[tuple[str, Calc]]) ->
     raise JobError([problem(job, f, where=(spec.line, spec.col))])
 
 
-def with_checks(job: Job, results):
+def with_checks(job: Job, results: Results) -> Results:
     """The results with their checks filled in from the job's limits."""
     if not job.limits:
         return results

@@ -55,6 +55,7 @@ def compute_closed(job: Job) -> Results:
         m = job.start.mass.si
         mass = Calc("m", m, "kg", "{m}", "input", {"m": Term("m", m, "kg")})
     else:
+        assert job.start.volume is not None, "the job layer requires the mass or the volume of a closed system"
         V1 = job.start.volume.si
         m = V1 / s1.v
         mass = Calc("m", m, "kg", "{V1} / {v1}", "state.mass",

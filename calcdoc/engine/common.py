@@ -2,14 +2,17 @@
 the basis of the results, the saturation dome for the charts, and the software versions."""
 from __future__ import annotations
 
+from collections.abc import Sequence
 from functools import lru_cache
 from importlib import metadata
+from typing import Any
 
 from .. import __version__
 from ..errors import Finding, JobError, PhysicsError
 from ..job.messages import problem
 from ..job.model import Job
 from ..physics.calc import Calc, Term
+from ..physics.closed import LegResult
 from ..physics.fluids import closest_fluids
 from ..physics.gas import R_U, Gas, IdealGas, RealGas
 from .diagnose import fluid_problems
@@ -47,7 +50,7 @@ def make_gas(job: Job) -> tuple[Gas, list[Calc]]:
 
 
 @lru_cache(maxsize=8)
-def shared_real_gas(fluid, mixture) -> RealGas:
+def shared_real_gas(fluid: str | None, mixture: tuple[tuple[str, float], ...]) -> RealGas:
     """One real-gas object per fluid and process, reused by every job and sweep point that needs it
     (its CoolProp state is set afresh by every flash, so reuse does not change results)."""
     return RealGas(fluid, mixture)
@@ -66,6 +69,7 @@ def _ideal_gas(job: Job) -> tuple[Gas, list[Calc]]:
         calcs.append(Calc("M", M, "kg/mol", "{Ru} / {R}", "ideal.R",
                           {"Ru": Term("R_u", R_U, "J/(mol*K)"), "R": Term("R", spec.R.si, "J/(kg*K)")}))
     else:
+        assert fluid is not None, "the job layer requires a fluid, or molar_mass or R, for an ideal gas"
         M = fluid.M
         calcs.append(Calc("M", M, "kg/mol", "M(fluid)", "eos.real"))
     R = R_U / M
@@ -76,6 +80,7 @@ def _ideal_gas(job: Job) -> tuple[Gas, list[Calc]]:
         calcs.append(Calc("k", k, "", "{k}", "input", {"k": Term("k", k, "")}))
     else:
         T1 = job.start.temperature.si
+        assert fluid is not None, "the job layer requires a fluid, or k, for an ideal gas"
         cp0 = fluid.cp0_at(T1)
         k = cp0 / (cp0 - R)
         calcs.append(Calc("k", k, "", "{cp0} / ({cp0} − {R})", "eos.real",
@@ -111,7 +116,7 @@ def site_calcs(job: Job) -> list[Calc]:
     return out
 
 
-def saturation_near(gas: Gas, legs) -> tuple | None:
+def saturation_near(gas: Gas, legs: Sequence[LegResult]) -> tuple[tuple[float, float, float, float], ...] | None:
     """The saturation dome for the charts when a path comes within 30 % of the critical temperature."""
     if not isinstance(gas, RealGas) or not gas.pure:
         return None
@@ -121,7 +126,7 @@ def saturation_near(gas: Gas, legs) -> tuple | None:
     return None
 
 
-def job_basis(job: Job, gas: Gas) -> dict:
+def job_basis(job: Job, gas: Gas) -> dict[str, Any]:
     """The basis of the results: the gas model and the site atmosphere (for the JSON and the report)."""
     site = job.site
     return {

@@ -7,11 +7,14 @@ computes a result.
 """
 from __future__ import annotations
 
+from collections.abc import Callable, Sequence
+
 from ..errors import Finding, PhysicsError, Problem
 from ..job.messages import problem
 from ..job.model import Job
+from ..physics.closed import LegResult
 from ..physics.fluids import closest_fluids, known_fluid
-from ..physics.gas import RealGas
+from ..physics.gas import Gas, RealGas, State
 
 __all__ = ["Z_TOLERANCE", "fluid_problems", "ideal_condensation_warnings", "phase_warnings", "start_state_problem"]
 
@@ -33,7 +36,7 @@ def fluid_problems(job: Job) -> list[Problem]:
     return out
 
 
-def start_state_problem(job: Job, gas, error: PhysicsError) -> Problem:
+def start_state_problem(job: Job, gas: Gas, error: PhysicsError) -> Problem:
     """Where the start state falls outside the gas model: the temperature or pressure at fault."""
     P, T = job.start.pressure.si, job.start.temperature.si
     Tmin, Tmax, pmax = (getattr(gas, a, None) for a in ("Tmin", "Tmax", "pmax"))
@@ -46,7 +49,7 @@ def start_state_problem(job: Job, gas, error: PhysicsError) -> Problem:
     return problem(job, Finding("start.not_computed", {"error": error}, "start"))
 
 
-def ideal_condensation_warnings(job: Job, gas, legs, start) -> list[Finding]:
+def ideal_condensation_warnings(job: Job, gas: Gas, legs: Sequence[LegResult], start: State) -> list[Finding]:
     """Warnings where an ideal-gas model of a named pure fluid passes below that fluid's dew point.
 
     The ideal-gas model has no liquid, so it would give numbers for a state that is really a liquid
@@ -73,7 +76,7 @@ def ideal_condensation_warnings(job: Job, gas, legs, start) -> list[Finding]:
     return _ideal_deviation(real, spec.fluid, checks)
 
 
-def _ideal_deviation(real, fluid: str, checks) -> list[Finding]:
+def _ideal_deviation(real: RealGas, fluid: str, checks: list[tuple[Finding, list[State]]]) -> list[Finding]:
     """A warning where the real fluid's Z departs from 1 by more than Z_TOLERANCE at a state of the job."""
     worst = None
     for label, states in checks:
@@ -91,7 +94,8 @@ def _ideal_deviation(real, fluid: str, checks) -> list[Finding]:
                                         "percent": abs(Z - 1) * 100})]
 
 
-def phase_warnings(dew_temperature, label: Finding, states, near_K: float, what: str) -> list[Finding]:
+def phase_warnings(dew_temperature: Callable[[float], float | None], label: Finding, states: Sequence[State],
+                   near_K: float, what: str) -> list[Finding]:
     """Warnings for states in or near the two-phase region: the first state found liquid or two-phase, else the
     state nearest its saturation (``what`` = "saturation", pure fluid) or dew temperature (``what`` = "dew",
     mixture) when nearer than ``near_K``. ``dew_temperature(P)`` gives that temperature or None."""

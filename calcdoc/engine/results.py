@@ -2,9 +2,11 @@
 from __future__ import annotations
 
 import math
+from collections.abc import Iterator
 from dataclasses import dataclass, field
 from typing import Any
 
+from ..errors import Finding
 from ..physics.calc import Calc
 from ..physics.gas import State
 
@@ -52,11 +54,11 @@ class Results:
     legs: tuple[Any, ...]                      # LegResult (closed) or flow leg results
     start_calcs: tuple[Calc, ...]
     checks: tuple[Check, ...] = ()
-    warnings: tuple[str, ...] = ()
+    warnings: tuple[Finding, ...] = ()
     basis: dict[str, Any] = field(default_factory=dict)
     software: dict[str, str] = field(default_factory=dict)
     extra: dict[str, Any] = field(default_factory=dict)
-    saturation: tuple | None = None            # (T, P, v, s) points of the saturation dome, for charts
+    saturation: tuple[tuple[float, float, float, float], ...] | None = None            # (T, P, v, s) points of the saturation dome, for charts
 
     @property
     def passed(self) -> bool:
@@ -70,7 +72,7 @@ class Results:
             seen.setdefault(c.method, None)
         return list(seen)
 
-    def all_calcs(self):
+    def all_calcs(self) -> Iterator[Calc]:
         """Every calc of the job in order: start, mass or flow, legs, checks."""
         yield from self.start_calcs
         if self.mass is not None:
@@ -82,17 +84,17 @@ class Results:
             yield c.value
 
 
-def q(value: float | None, unit: str) -> dict:
+def q(value: float | None, unit: str) -> dict[str, Any]:
     """A quantity in the results file: SI value (null where infinite or undefined) and its unit."""
     if value is None or (isinstance(value, float) and not math.isfinite(value)):
         return {"value": None, "unit": unit}
     return {"value": value, "unit": unit}
 
 
-def state_json(rec: StateRecord) -> dict:
+def state_json(rec: StateRecord) -> dict[str, Any]:
     """One state in the results contract."""
     s = rec.state
-    out = {"label": rec.label, "P": q(s.P, "Pa"), "T": q(s.T, "K"), "v": q(s.v, "m**3/kg"), "rho": q(s.rho, "kg/m**3"),
+    out: dict[str, Any] = {"label": rec.label, "P": q(s.P, "Pa"), "T": q(s.T, "K"), "v": q(s.v, "m**3/kg"), "rho": q(s.rho, "kg/m**3"),
            "u": q(s.u, "J/kg"), "h": q(s.h, "J/kg"), "s": q(s.s, "J/(kg*K)"), "Z": q(s.Z, ""), "phase": s.phase}
     if s.quality is not None:
         out["quality"] = q(s.quality, "")
@@ -103,7 +105,7 @@ def state_json(rec: StateRecord) -> dict:
     return out
 
 
-def to_json(res: Results) -> dict:
+def to_json(res: Results) -> dict[str, Any]:
     """The results contract as data (SI values; findings still as codes, worded by the report's writer)."""
     job = res.job
     t = job.calc

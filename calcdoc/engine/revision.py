@@ -10,9 +10,10 @@ from __future__ import annotations
 import dataclasses
 import math
 from dataclasses import dataclass
+from typing import Any
 
 from ..job.model import Job
-from .results import to_json
+from .results import Results, to_json
 
 __all__ = ["Diff", "InputChange", "ResultChange", "compare", "diff_json", "with_changes"]
 
@@ -51,7 +52,7 @@ class Diff:
     unchanged: int           # results compared and found equal
 
 
-def result_values(res) -> dict[str, tuple[float | str | None, str]]:
+def result_values(res: Results) -> dict[str, tuple[float | str | None, str]]:
     """The results to compare, from the results-file contract: key → (value, unit)."""
     d = to_json(res)
     out: dict[str, tuple[float | str | None, str]] = {}
@@ -76,7 +77,7 @@ def result_values(res) -> dict[str, tuple[float | str | None, str]]:
     return out
 
 
-def compare(old_job: Job, new_job: Job, old_res, new_res) -> Diff:
+def compare(old_job: Job, new_job: Job, old_res: Results, new_res: Results) -> Diff:
     """What changed from the old revision to the new one."""
     a = {p: (v, ln) for p, v, ln in old_job.leaves}
     b = {p: (v, ln) for p, v, ln in new_job.leaves}
@@ -107,7 +108,7 @@ def compare(old_job: Job, new_job: Job, old_res, new_res) -> Diff:
         else:
             moved.append(ResultChange(key, unit, x, y, None, None, diff_t))
 
-    def order(c: ResultChange):
+    def order(c: ResultChange) -> tuple[int, float]:
         if c.percent is not None:
             return (1, -abs(c.percent))
         return (0, 0.0)       # text changes, new, removed and from-zero changes first
@@ -118,9 +119,9 @@ def compare(old_job: Job, new_job: Job, old_res, new_res) -> Diff:
                 tuple(inputs), tuple(moved), unchanged)
 
 
-def diff_json(diff: Diff) -> dict:
+def diff_json(diff: Diff) -> dict[str, Any]:
     """The comparison as data (results JSON ``changes_since``; the report's section reads it)."""
-    def num(x):
+    def num(x: Any) -> Any:
         return None if isinstance(x, float) and not math.isfinite(x) else x
 
     return {
@@ -134,7 +135,7 @@ def diff_json(diff: Diff) -> dict:
     }
 
 
-def with_changes(results, old_job: Job, old_results):
+def with_changes(results: Results, old_job: Job, old_results: Results) -> Results:
     """The new results carrying the comparison with an older revision (for the report section)."""
     d = compare(old_job, results.job, old_results, results)
     return dataclasses.replace(results, extra={**results.extra, "changes_since": diff_json(d)})

@@ -9,24 +9,28 @@ from __future__ import annotations
 
 import dataclasses
 import math
+from collections.abc import Callable
+from typing import Any
 
 from ..errors import JobError, PhysicsError
 from ..job.model import Job
 from ..job.quantities import series_name
 from ..job.vary import at_point, point_jobs
 from .checks import evaluate, locations
-from .results import q as qjson
+from .results import Results, q as qjson
 
 __all__ = ["with_sweep"]
 
 
-def with_sweep(job: Job, results, compute):
+def with_sweep(job: Job, results: Results, compute: Callable[[Job], Results]) -> Results:
     """The results with the sweep series (``results.extra['sweep']``), when the job has a sweep; ``compute``
     computes one point's job (states and legs, no checks)."""
     sw = job.sweep
     if sw is None:
         return results
-    points, series, checks = [], {}, {}
+    points: list[dict[str, Any]] = []
+    series: dict[tuple[str, str], dict[str, Any]] = {}
+    checks: dict[tuple[str, str, str], dict[str, Any]] = {}
     n = len(sw.points)
     for k, entered, pj in point_jobs(job):
         try:
@@ -44,8 +48,8 @@ def with_sweep(job: Job, results, compute):
                                             "at": place, "unit": calc.unit, "values": [None] * n})
                 s["values"][k] = calc.value if math.isfinite(calc.value) else None
         for c in chk:
-            key = (c.name, c.kind, c.where)
-            s = checks.setdefault(key, {"name": c.name, "type": c.kind, "at": c.where, "unit": c.unit,
+            ckey = (c.name, c.kind, c.where)
+            s = checks.setdefault(ckey, {"name": c.name, "type": c.kind, "at": c.where, "unit": c.unit,
                                         "margin": [None] * n, "status": [None] * n})
             s["margin"][k] = c.margin
             s["status"][k] = c.status

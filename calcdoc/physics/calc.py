@@ -2,6 +2,7 @@
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from typing import Any
 
 from ..errors import Finding
 
@@ -36,11 +37,11 @@ class Calc:
     note: str | Finding = ""     # a note code (its words are the report's), or a code with values
     difference: bool = False   # a temperature difference (shown in K or °R, never °C/°F)
 
-    def as_json(self) -> dict:
+    def as_json(self) -> dict[str, Any]:
         """The value as a quantity of the results file."""
         return {"value": self.value, "unit": self.unit}
 
-    def trace(self) -> dict:
+    def trace(self) -> dict[str, Any]:
         """The calculation as data, for the results file."""
         return {
             "symbol": self.symbol,

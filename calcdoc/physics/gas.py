@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from typing import Any
 
 from ..errors import PhysicsError
 
@@ -115,29 +116,28 @@ class IdealGas(Gas):
         return State(P, T, v, h - P * v, h, self.cp * math.log(T / T_REF) - self.R * math.log(P / P_REF), 1.0,
                      "gas (ideal)")
 
-    def state_PT(self, P, T):
+    def state_PT(self, P: float, T: float) -> State:
         """The state at (P, T): v = R·T/P."""
         return self._make(P, T)
 
-    def state_Pv(self, P, v):
+    def state_Pv(self, P: float, v: float) -> State:
         """The state at (P, v): T = P·v/R."""
         return self._make(P, P * v / self.R)
 
-    def state_Tv(self, T, v):
+    def state_Tv(self, T: float, v: float) -> State:
         """The state at (T, v): P = R·T/v."""
         return self._make(self.R * T / v, T)
 
-    def state_Ps(self, P, s):
+    def state_Ps(self, P: float, s: float) -> State:
         """The state at (P, s): T = T_ref·exp((s + R·ln(P/P_ref))/cp)."""
         return self._make(P, T_REF * math.exp((s + self.R * math.log(P / P_REF)) / self.cp))
 
-    def state_vs(self, v, s):
-        # s = cv·ln(T/T_ref) − R·ln(R·T_ref/(v·P_ref))
+    def state_vs(self, v: float, s: float) -> State:
         """The state at (v, s): T from s = cv·ln(T/T_ref) − R·ln(R·T_ref/(v·P_ref))."""
         T = T_REF * math.exp((s + self.R * math.log(self.R * T_REF / (v * P_REF))) / self.cv)
         return self._make(self.R * T / v, T)
 
-    def state_Ph(self, P, h):
+    def state_Ph(self, P: float, h: float) -> State:
         """The state at (P, h): T = T_ref + h/cp."""
         return self._make(P, T_REF + h / self.cp)
 
@@ -190,7 +190,7 @@ class RealGas(Gas):
         self.Pc = self.AS.p_critical() if self.pure else math.nan
         self.flashes = 0
 
-    def _update(self, pair, a: float, b: float, what: dict[str, float]) -> State:
+    def _update(self, pair: Any, a: float, b: float, what: dict[str, float]) -> State:
         AS = self.AS
         self.flashes += 1
         try:
@@ -210,12 +210,14 @@ class RealGas(Gas):
         return State(P, T, 1.0 / AS.rhomass(), AS.umass(), AS.hmass(), AS.smass(), AS.compressibility_factor(),
                      phase, quality)
 
-    def _why_not(self, pair, a: float, b: float, what: dict[str, float], exc: Exception) -> PhysicsError:
+    def _why_not(self, pair: Any, a: float, b: float, what: dict[str, float], exc: Exception) -> PhysicsError:
         """The reason a flash failed, where we can tell (below the triple point: solid)."""
         CP = self._CP
         if self.pure:
             P = {CP.PSmass_INPUTS: a, CP.HmassP_INPUTS: b, CP.PT_INPUTS: a, CP.PQ_INPUTS: a}.get(pair)
             T = b if pair == CP.PT_INPUTS else None
+            P_tr: float | None
+            T_tr: float | None
             try:
                 P_tr, T_tr = self.AS.trivial_keyed_output(CP.iP_triple), self.AS.Ttriple()
             except ValueError:
@@ -226,11 +228,11 @@ class RealGas(Gas):
                 return PhysicsError("eos.below_triple_temperature", T=T, fluid=self.name, T_tr=T_tr)
         return PhysicsError("eos.no_state", state=what, detail=_short(exc))
 
-    def state_PT(self, P, T):
+    def state_PT(self, P: float, T: float) -> State:
         """The state at (P, T): a PT flash."""
         return self._update(self._CP.PT_INPUTS, P, T, {"P": P, "T": T})
 
-    def state_Pv(self, P, v):
+    def state_Pv(self, P: float, v: float) -> State:
         """The state at (P, v): a (density, pressure) flash; mixtures by Newton's method in T."""
         if self.pure:
             return self._update(self._CP.DmassP_INPUTS, 1.0 / v, P, {"P": P, "v": v})
@@ -258,19 +260,19 @@ class RealGas(Gas):
                 return T
         raise PhysicsError("eos.mixture_Pv", state={"P": P, "v": v})
 
-    def state_Tv(self, T, v):
+    def state_Tv(self, T: float, v: float) -> State:
         """The state at (T, v): a (density, temperature) flash."""
         return self._update(self._CP.DmassT_INPUTS, 1.0 / v, T, {"T": T, "v": v})
 
-    def state_Ps(self, P, s):
+    def state_Ps(self, P: float, s: float) -> State:
         """The state at (P, s): a (pressure, entropy) flash."""
         return self._update(self._CP.PSmass_INPUTS, P, s, {"P": P, "s": s})
 
-    def state_vs(self, v, s):
+    def state_vs(self, v: float, s: float) -> State:
         """The state at (v, s): a (density, entropy) flash."""
         return self._update(self._CP.DmassSmass_INPUTS, 1.0 / v, s, {"v": v, "s": s})
 
-    def state_Ph(self, P, h):
+    def state_Ph(self, P: float, h: float) -> State:
         """The state at (P, h): an (enthalpy, pressure) flash."""
         return self._update(self._CP.HmassP_INPUTS, h, P, {"P": P, "h": h})
 
@@ -278,7 +280,7 @@ class RealGas(Gas):
         """Ideal-gas isobaric heat capacity at T [J/(kg K)]."""
         AS = self.AS
         AS.update(self._CP.DmassT_INPUTS, 1e-6, T)
-        return AS.cp0mass()
+        return float(AS.cp0mass())
 
     def dew_temperature(self, P: float) -> float | None:
         """Saturation temperature of a pure fluid at P [K]; None for a mixture or at or above the critical pressure."""
@@ -286,11 +288,11 @@ class RealGas(Gas):
             return None
         try:
             self.AS.update(self._CP.PQ_INPUTS, P, 1.0)
-            return self.AS.T()
+            return float(self.AS.T())
         except ValueError:
             return None
 
-    def saturation_curve(self, n: int = 60):
+    def saturation_curve(self, n: int = 60) -> list[tuple[float, float, float, float]] | None:
         """Points (T, P, v, s) of the saturated liquid and vapour lines of a pure fluid (None for a mixture)."""
         if not self.pure:
             return None

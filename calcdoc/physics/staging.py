@@ -47,7 +47,7 @@ def equal_stage_ratio(P_in: float, P_out: float, N: int, fraction: float | None 
     """
     if fraction is not None or not absolute:
         d = fraction or 0.0
-        return (P_out / (P_in * (1.0 - d) ** (N - 1))) ** (1.0 / N)
+        return float((P_out / (P_in * (1.0 - d) ** (N - 1))) ** (1.0 / N))
     lo, hi = 1.0, 2.0
     while suction_pressures(P_in, hi, N, None, absolute)[-1] < P_out:
         hi *= 2.0

@@ -191,7 +191,7 @@ def _typeset(src: str, field) -> str:
                 i += len(tok)
         else:
             m = re.match(r"[^{^]+", src[i:])
-            chunk = m.group(0)
+            chunk = m.group(0) if m else src[i]
             out.append(str(symbol(chunk)))
             i += len(chunk)
     return "".join(out)

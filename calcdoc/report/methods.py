@@ -175,7 +175,7 @@ def fluid_reference(bibkey: str) -> str:
     m = re.search(r"@\w+\{" + re.escape(bibkey) + r",(.*?)\n\}", text, re.S)
     if not m:
         return f"{bibkey} (as named in CoolProp's bibliography)"
-    fields = dict((k.lower(), v) for k, v in re.findall(r"(\w+)\s*=\s*\{(.*?)\},?\s*\n", m.group(1), re.S))
+    fields: dict[str, str] = dict((k.lower(), v) for k, v in re.findall(r"(\w+)\s*=\s*\{(.*?)\},?\s*\n", m.group(1), re.S))
 
     def clean(s: str) -> str:
         s = re.sub(r"\\[a-zA-Z]+\{(.*?)\}", r"\1", s)

@@ -31,13 +31,13 @@ def diff_text(diff: Diff, system: str = "SI") -> str:
     lines.append("")
     lines.append(f"Results and checks that moved ({len(diff.moved)}), largest relative change first:"
                  if diff.moved else "Results and checks: none moved.")
-    for c in diff.moved:
+    for m in diff.moved:
         change = ""
-        if c.change is not None:
-            change = f"   change {_show(c.change, c.unit, system, difference=True)}"
-            change += f" ({c.percent:+.3g} %)" if c.percent is not None else ""
-        lines.append(f"  {c.key}: {_show(c.old, c.unit, system, c.difference)} → "
-                     f"{_show(c.new, c.unit, system, c.difference)}{change}")
+        if m.change is not None:
+            change = f"   change {_show(m.change, m.unit, system, difference=True)}"
+            change += f" ({m.percent:+.3g} %)" if m.percent is not None else ""
+        lines.append(f"  {m.key}: {_show(m.old, m.unit, system, m.difference)} → "
+                     f"{_show(m.new, m.unit, system, m.difference)}{change}")
     lines.append(f"  {diff.unchanged} result{'s' if diff.unchanged != 1 else ''} unchanged.")
     return "\n".join(lines) + "\n"
 

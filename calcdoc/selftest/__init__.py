@@ -203,10 +203,10 @@ def run_case(case: Case) -> CaseResult:
         try:
             if ex.formula is not None:
                 ev = _reference.evaluate(ex.formula, given)
-                libs = set(ev.libraries)
+                found = set(ev.libraries)
                 for n in _reference.names_used(ex.formula):
-                    libs.update(given_libs.get(n, ()))
-                want, libs = ev.value, tuple(sorted(libs))
+                    found.update(given_libs.get(n, ()))
+                want, libs = ev.value, tuple(sorted(found))
             else:
                 want, libs = ex.value, ()
         except (ImportError, _reference.ExpressionError, ValueError, ArithmeticError) as exc:

@@ -19,6 +19,7 @@ import ast
 import math
 from dataclasses import dataclass, field
 from importlib import metadata
+from typing import Any
 
 __all__ = ["ExpressionError", "Evaluation", "FUNCTIONS", "LIBRARIES", "evaluate", "library_version", "names_used", "rk4"]
 
@@ -154,7 +155,7 @@ def evaluate(text, given: dict[str, object]) -> Evaluation:
     unknown = sorted(used - set(given) - set(FUNCTIONS) - set(CONSTANTS) - lambda_args)
     if unknown:
         raise ExpressionError(f"'{text}' uses {', '.join(unknown)}, which the case does not give")
-    scope = dict(CONSTANTS)
+    scope: dict[str, Any] = dict(CONSTANTS)
     scope.update({k: fn.call for k, fn in FUNCTIONS.items()})
     scope.update(given)
     value = _interpret(tree.body, scope)
@@ -178,6 +179,7 @@ def _interpret(node: ast.AST, scope: dict):
     if isinstance(node, ast.UnaryOp):
         return _UNARY[type(node.op)](_interpret(node.operand, scope))
     if isinstance(node, ast.Call):
+        assert isinstance(node.func, ast.Name)             # _parse admits calls of plain names only
         return scope[node.func.id](*(_interpret(a, scope) for a in node.args))
     if isinstance(node, ast.Lambda):
         params = [a.arg for a in node.args.args]
