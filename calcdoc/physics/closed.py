@@ -7,6 +7,7 @@ Sign convention: work done BY the gas and heat added TO the gas are positive.
 from __future__ import annotations
 
 import math
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 
 from ..errors import Finding, PhysicsError
@@ -61,12 +62,14 @@ def _s(name: str, i: int) -> str:
     return f"{name}_{i}"
 
 
-def _solve(f, x0: float, step: float = 0.05, span: float = 12.0, target: dict | None = None) -> float:
+def _solve(f: Callable[[float], float], x0: float, step: float = 0.05, span: float = 12.0,
+           target: dict[str, float] | None = None) -> float:
     """Root of f(x) near x0: expand a bracket both ways, then bisect-secant (Illinois) to 1e-13."""
     f0 = f(x0)
     if f0 == 0.0:
         return x0
-    a = b = None
+    a: float | None = None
+    b = fa = fb = 0.0
     d = step
     while d <= span:
         for x in (x0 + d, x0 - d):
@@ -103,11 +106,14 @@ def _solve(f, x0: float, step: float = 0.05, span: float = 12.0, target: dict | 
     return c
 
 
+_Leg = Callable[[Gas, str, int, State, float, list[Target], "float | None"], "LegResult"]
+
+
 def closed_leg(gas: Gas, name: str, process: str, i: int, s1: State, m: float, targets: list[Target],
                n: float | None) -> LegResult:
     """One closed-system leg from state i (s1) of a mass m [kg] to its end target(s)."""
-    fn = {"polytropic": _polytropic, "isentropic": _isentropic, "isothermal": _isothermal,
-          "isobaric": _isobaric, "isochoric": _isochoric}[process]
+    fn: _Leg = {"polytropic": _polytropic, "isentropic": _isentropic, "isothermal": _isothermal,
+                "isobaric": _isobaric, "isochoric": _isochoric}[process]
     return fn(gas, name, i, s1, m, targets, n)
 
 
@@ -132,16 +138,17 @@ def _differences(i: int, s1: State, s2: State, m: float) -> dict[str, Calc]:
 
 
 def _finish(gas: Gas, name: str, process: str, i: int, s1: State, s2: State, m: float, W: Calc, Q: Calc,
-            n: Calc | None, steps: list[Calc], path: list[State], facts: list[str],
-            targets: list[Target] = ()) -> LegResult:
+            n: Calc | None, steps: list[Calc], path: list[State], facts: list[Finding],
+            targets: Sequence[Target] = ()) -> LegResult:
     d = _differences(i, s1, s2, m)
-    q = {"W_by_gas": W, "Q_to_gas": Q, "dU": d["dU"], "dH": d["dH"], "dS": d["dS"]}
+    q: dict[str, Calc] = {"W_by_gas": W, "Q_to_gas": Q, "dU": d["dU"], "dH": d["dH"], "dS": d["dS"]}
     if n is not None:
         q["n"] = n
     given, found = _end_state_calcs(gas, process, i, s1, s2, m, steps, targets)
     calcs = given + steps + found + _state_calcs(gas, i + 1, s2, m) + [d["dU"], W, Q, d["dH"], d["dS"]]
     # keep each Calc once, in first-use order
-    seen, ordered = set(), []
+    seen: set[int] = set()
+    ordered: list[Calc] = []
     for c in calcs:
         if id(c) not in seen:
             seen.add(id(c))
@@ -154,7 +161,7 @@ _HELD = {"isothermal": "T", "isobaric": "P", "isochoric": "v"}
 
 
 def _end_state_calcs(gas: Gas, process: str, i: int, s1: State, s2: State, m: float, steps: list[Calc],
-                     targets) -> tuple[list[Calc], list[Calc]]:
+                     targets: Sequence[Target]) -> tuple[list[Calc], list[Calc]]:
     """How the end state's P, T and v were found: the end target and the property the process holds (shown
     before the path steps), then what the equation of state gives and the volume of the mass (after them)."""
     j = i + 1
@@ -177,7 +184,8 @@ def _end_state_calcs(gas: Gas, process: str, i: int, s1: State, s2: State, m: fl
             if process == "isentropic":
                 pair = ("P", "s") if "P" in kinds else ("v", "s") if "v" in kinds else ("P", "s")
             else:
-                pair = tuple(x for x in ("P", "T", "v") if x != prop)
+                a, b = (x for x in ("P", "T", "v") if x != prop)
+                pair = (a, b)
             out.append(Calc(sym, val, unit, f"{prop}({pair[0]}_{j}, {pair[1]}_{j})", gas.eos_method,
                             note="from_eos"))
     if "v" not in kinds or process == "isochoric":
@@ -221,9 +229,10 @@ def _one(targets: list[Target], allowed: str, process: str) -> Target:
 
 
 # -- the processes -------------------------------------------------------------------------------
-def _polytropic(gas, name, i, s1, m, targets, n):
+def _polytropic(gas: Gas, name: str, i: int, s1: State, m: float, targets: list[Target],
+                n: float | None) -> LegResult:
     j = i + 1
-    facts: list[str] = []
+    facts: list[Finding] = []
     steps: list[Calc] = []
     P1, v1 = s1.P, s1.v
     if n is None:
@@ -265,7 +274,7 @@ def _polytropic(gas, name, i, s1, m, targets, n):
                                   {"v1": Term(_s("v", i), v1, "m**3/kg"), "T1": Term(_s("T", i), s1.T, "K"),
                                    "T2": Term(_s("T", j), T2, "K"), "n": nterm}))
             else:
-                def f(x):
+                def f(x: float) -> float:
                     v = v1 * math.exp(x)
                     return gas.state_Pv(P1 * (v1 / v) ** n, v).T - T2
                 v2 = v1 * math.exp(_solve(f, 0.0, target={"T": T2, "n": n}))
@@ -295,7 +304,8 @@ def _polytropic(gas, name, i, s1, m, targets, n):
     return _finish(gas, name, "polytropic", i, s1, s2, m, W, Q, ncalc, steps, [s1, *path, s2], facts, targets)
 
 
-def _isentropic(gas, name, i, s1, m, targets, n):
+def _isentropic(gas: Gas, name: str, i: int, s1: State, m: float, targets: list[Target],
+                n: float | None) -> LegResult:
     j = i + 1
     t = _one(targets, "PTv", "isentropic")
     if t.kind == "P":
@@ -317,7 +327,8 @@ def _isentropic(gas, name, i, s1, m, targets, n):
                    [s1, *path, s2], [], targets)
 
 
-def _isothermal(gas, name, i, s1, m, targets, n):
+def _isothermal(gas: Gas, name: str, i: int, s1: State, m: float, targets: list[Target],
+                n: float | None) -> LegResult:
     j = i + 1
     t = _one(targets, "Pv", "isothermal")
     s2 = gas.state_PT(t.value, s1.T) if t.kind == "P" else gas.state_Tv(s1.T, t.value)
@@ -341,7 +352,8 @@ def _isothermal(gas, name, i, s1, m, targets, n):
                    targets)
 
 
-def _isobaric(gas, name, i, s1, m, targets, n):
+def _isobaric(gas: Gas, name: str, i: int, s1: State, m: float, targets: list[Target],
+              n: float | None) -> LegResult:
     j = i + 1
     t = _one(targets, "Tv", "isobaric")
     s2 = gas.state_PT(s1.P, t.value) if t.kind == "T" else gas.state_Pv(s1.P, t.value)
@@ -355,7 +367,8 @@ def _isobaric(gas, name, i, s1, m, targets, n):
                    [s1, *path, s2], [], targets)
 
 
-def _isochoric(gas, name, i, s1, m, targets, n):
+def _isochoric(gas: Gas, name: str, i: int, s1: State, m: float, targets: list[Target],
+               n: float | None) -> LegResult:
     t = _one(targets, "PT", "isochoric")
     s2 = gas.state_Pv(t.value, s1.v) if t.kind == "P" else gas.state_Tv(t.value, s1.v)
     W = Calc("W", 0.0, "J", "0", "work.isochoric")
