@@ -184,6 +184,9 @@ def standard_atmosphere_pressure(z: float) -> float:
     (33a). ISO 2533:1975 gives the same values to 10 km.
 
     Example: z = 1000 m gives 89 876 Pa (table 1 of the 1976 standard, from memory).
+
+    >>> round(standard_atmosphere_pressure(1000.0))
+    89876
     """
     if not -610.0 <= z <= 11000.0:
         raise ValueError("elevation outside the troposphere layer of the standard atmosphere (-610 m to 11 000 m)")

@@ -50,7 +50,10 @@ def polytropic_work(P1V1: float, r: float, n: float) -> float:
     loses digits to cancellation.
 
     References: Çengel, Boles & Kanoğlu (2019), ch. 4, moving boundary work of a polytropic process.
-    Example: P1·V1 = 100 kJ, r = 2, n = 1 gives 100·ln 2 = 69.31 kJ.
+    Example (the isothermal case, W = P1·V1·ln(V2/V1)): P1·V1 = 100 kJ doubling its volume gives 100·ln 2 kJ.
+
+    >>> round(polytropic_work(100e3, 2.0, 1.0), 1)
+    69314.7
     """
     a = (1.0 - n) * math.log(r)
     if abs(1.0 - n) < 1e-12:
@@ -111,7 +114,14 @@ _Leg = Callable[[Gas, str, int, State, float, list[Target], "float | None"], "Le
 
 def closed_leg(gas: Gas, name: str, process: str, i: int, s1: State, m: float, targets: list[Target],
                n: float | None) -> LegResult:
-    """One closed-system leg from state i (s1) of a mass m [kg] to its end target(s)."""
+    """One closed-system leg from state i (s1) of a mass m [kg] to its end target(s).
+
+    Quasi-equilibrium paths of a fixed mass: P·vⁿ = const (polytropic), s = const, T = const, P = const,
+    v = const; boundary work ∫P dV and heat from the first law Q = ΔU + W (work done by the gas positive).
+
+    References: Çengel, Boles & Kanoğlu (2019), ch. 4 (moving boundary work, first law of closed systems) and
+    ch. 7 (isentropic processes); Moran et al. (2014), sec. 2.2.
+    """
     fn: _Leg = {"polytropic": _polytropic, "isentropic": _isentropic, "isothermal": _isothermal,
                 "isobaric": _isobaric, "isochoric": _isochoric}[process]
     return fn(gas, name, i, s1, m, targets, n)
@@ -202,7 +212,10 @@ def _heat_first_law(i: int, dU: float, W: float) -> Calc:
 def n_from_states(i: int, s1: State, s2: State, method: str = "path.polytropic_n",
                   note: str = "n_equivalent") -> Calc | None:
     """The polytropic exponent joining states i and i + 1, n = ln(P2/P1)/ln(v1/v2); None where P or v is
-    the same at both ends (no exponent joins them)."""
+    the same at both ends (no exponent joins them).
+
+    References: Moran et al. (2014), sec. 2.2 (polytropic process P·Vⁿ = const, taken through two states).
+    """
     j = i + 1
     if s2.v == s1.v or s2.P == s1.P:
         return None

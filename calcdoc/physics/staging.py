@@ -14,7 +14,8 @@ __all__ = ["equal_stage_ratio", "stage_ratio_calc", "suction_pressures"]
 def suction_pressures(P_in: float, r: float, N: int, fraction: float | None, absolute: float | None) -> list[float]:
     """Suction pressure of each stage and the final discharge pressure, for stage ratio r [Pa].
 
-    Stage k discharges at r·P_k; its intercooler lowers that by the drop, giving P_(k+1).
+    Stage k discharges at r·P_k; its intercooler lowers that by the drop, giving P_(k+1) (the algebra of the
+    chain of stages; see :func:`equal_stage_ratio` for the reference).
     """
     out = [P_in]
     P = P_in
@@ -44,6 +45,9 @@ def equal_stage_ratio(P_in: float, P_out: float, N: int, fraction: float | None 
     References: Çengel & Boles (2019), ch. 7, multistage compression with intercooling (equal
     pressure ratios minimise the work); the allowance for drops is plain algebra of the chain.
     Example: P_in = 100 kPa, P_out = 900 kPa, N = 2, no drop: r = 3.
+
+    >>> round(equal_stage_ratio(100e3, 900e3, 2), 12)
+    3.0
     """
     if fraction is not None or not absolute:
         d = fraction or 0.0
@@ -65,7 +69,7 @@ def equal_stage_ratio(P_in: float, P_out: float, N: int, fraction: float | None 
 
 
 def stage_ratio_calc(P_in: float, P_out: float, N: int, fraction: float | None, absolute: float | None) -> Calc:
-    """The stage ratio as a calc a checker can follow."""
+    """The stage ratio as a calc a checker can follow (method and reference as :func:`equal_stage_ratio`)."""
     r = equal_stage_ratio(P_in, P_out, N, fraction, absolute)
     ins = {"Pout": Term("P_out", P_out, "Pa"), "Pin": Term("P_in", P_in, "Pa"), "N": Term("N", float(N), "")}
     if absolute:
