@@ -12,6 +12,7 @@ from importlib import resources
 from typing import Any
 
 from ..errors import CalcdocError, JobError, Problem
+from ..job.reader import Reader
 from ..job.source import Node, load as _load_yaml
 from ..report.methods import METHODS
 from . import reference as _reference
@@ -93,35 +94,31 @@ def _plain(node: Node) -> Any:
     return node.value
 
 
-class _Reader:
+class _Reader(Reader):
+    """Reads a case file with the job file's reader (the same file:line:col messages); text and tolerances
+    are read more strictly here (text is required, numbers are non-negative)."""
+
     def __init__(self, name: str):
-        self.name = name
-        self.problems: list[Problem] = []
+        super().__init__(name)
 
-    def add(self, node: Node, found: str, valid: str = "") -> None:
-        self.problems.append(Problem(self.name, *node.where, node.path, found, valid))
+    def mapping(self, node: Node, allowed: tuple[str, ...], required: tuple[str, ...] = (),
+                what: str = "") -> dict[str, Node]:
+        """The allowed keys; unknown and missing keys are problems (a case's own names pass through)."""
+        self.hints = {k: "required keys here: " + ", ".join(required) for k in required}
+        return super().mapping(node, allowed, required, what)
 
-    def mapping(self, node: Node, allowed: tuple[str, ...], required: tuple[str, ...]) -> dict[str, Node]:
-        if node.kind != "map":
-            self.add(node, "expected a mapping", "valid keys: " + ", ".join(allowed))
-            return {}
-        for key, child in node.value.items():
-            if key not in allowed:
-                self.add(child, f"unknown key '{key}'", "valid keys here: " + ", ".join(allowed))
-        for key in required:
-            if key not in node.value:
-                self.add(node, f"missing key '{key}'", "required keys here: " + ", ".join(required))
-        return node.value
-
-    def text(self, node: Node | None) -> str:
+    def text(self, node: Node | None, default: str = "", required: bool = True, what: str = "text") -> str:
+        """A non-empty text, stripped."""
         if node is None:
-            return ""
+            return default
         if node.kind != "scalar" or not isinstance(node.value, str) or not node.value.strip():
             self.add(node, "expected text", "write plain text")
-            return ""
+            return default
         return node.value.strip()
 
-    def number(self, node: Node) -> float:
+    def number(self, node: Node, lo: float | None = 0.0, hi: float | None = None, lo_open: bool = False,
+               hi_open: bool = False, what: str = "a non-negative number") -> float:
+        """A non-negative number (a tolerance)."""
         if node.kind != "scalar" or isinstance(node.value, bool) or not isinstance(node.value, (int, float)) \
                 or node.value < 0:
             self.add(node, "expected a non-negative number", "write for example 1.0e-9")
