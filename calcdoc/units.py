@@ -56,6 +56,10 @@ DIMENSIONS: dict[str, str] = {
     "standard_volume_flow": "m**3/s",
     "density": "kg/m**3",
     "dimensionless": "",
+    "time": "s",
+    "area": "m**2",
+    "specific_heat": "J/(kg*K)",
+    "heat_transfer_coefficient": "W/(m**2*K)",
 }
 
 # Gauge markers: a pressure unit followed by "g" (barg, psig, kPag, MPag) or "(g)"/" gauge".
@@ -77,7 +81,7 @@ _PERCENT = re.compile(r"^\s*(?P<num>[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s
 
 # Spellings engineers write that pint does not know, mapped to pint's.
 _ALIASES = {
-    "m3": "m**3", "cm3": "cm**3", "mm3": "mm**3", "ft3": "ft**3", "in3": "in**3",
+    "m3": "m**3", "m2": "m**2", "mm2": "mm**2", "ft2": "ft**2", "cm3": "cm**3", "mm3": "mm**3", "ft3": "ft**3", "in3": "in**3",
     "L": "liter", "l": "liter", "kpa": "kPa", "mpa": "MPa",
     "m3/h": "m**3/hour", "m3/s": "m**3/s", "m3/min": "m**3/min", "ft3/min": "ft**3/min",
     "cfm": "ft**3/min", "acfm": "ft**3/min", "m3/kg": "m**3/kg", "ft3/lb": "ft**3/lb",
@@ -151,11 +155,14 @@ class Parsed:
 def _pint_unit(text: str) -> str:
     text = text.strip()
     text = _ALIASES.get(text, text)
+    # powers of a length inside a compound unit, as engineers write them: W/(m2*K) → W/(m**2*K)
+    text = _LENGTH_POWER.sub(r"\1**\2", text)
     # the Btu engineers mean is the International Table Btu (1 Btu/lb = 2.326 kJ/kg exactly, NIST SP 811);
     # pint's plain "Btu" is the rounded ISO value 1055.056 J
     return _BTU.sub("Btu_it", text)
 
 
+_LENGTH_POWER = re.compile(r"(?<![\w*])(mm|cm|m|ft|in)([23])\b")
 _BTU = re.compile(r"\b(?:Btu|BTU)\b")
 
 
@@ -213,6 +220,10 @@ _EXAMPLES = {
     "temperature_difference": "'10 K' or '18 delta_degF'",
     "volume": "'50 L', '0.05 m3' or '3 ft3'",
     "mass": "'2 kg' or '4.4 lb'",
+    "time": "'90 s', '15 min' or '2 h'",
+    "area": "'9 m2' or '95 ft2'",
+    "specific_heat": "'0.49 kJ/(kg*K)'",
+    "heat_transfer_coefficient": "'8 W/(m2*K)'",
     "length": "'450 m' or '1500 ft'",
     "molar_mass": "'28.97 g/mol' or '28.97 kg/kmol'",
     "specific_gas_constant": "'287 J/(kg*K)'",
@@ -379,13 +390,13 @@ _SYSTEMS = {
         "Pa": "kPa", "K": "degC", "m**3": "m**3", "kg": "kg", "m**3/kg": "m**3/kg",
         "J/kg": "kJ/kg", "J/(kg*K)": "kJ/(kg*K)", "J": "kJ", "J/K": "kJ/K", "W": "kW",
         "kg/s": "kg/s", "mol/s": "kmol/h", "m**3/s": "m**3/h", "kg/m**3": "kg/m**3", "": "",
-        "kg/mol": "g/mol", "m": "m",
+        "kg/mol": "g/mol", "m": "m", "s": "s", "m**2": "m**2", "W/(m**2*K)": "W/(m**2*K)",
     },
     "US": {
         "Pa": "psi", "K": "degF", "m**3": "ft**3", "kg": "lb", "m**3/kg": "ft**3/lb",
         "J/kg": "Btu_it/lb", "J/(kg*K)": "Btu_it/(lb*degR)", "J": "Btu_it", "J/K": "Btu_it/degR", "W": "hp",
         "kg/s": "lb/hour", "mol/s": "lbmol/hour", "m**3/s": "ft**3/min", "kg/m**3": "lb/ft**3", "": "",
-        "kg/mol": "lb/lbmol", "m": "ft",
+        "kg/mol": "lb/lbmol", "m": "ft", "s": "s", "m**2": "ft**2", "W/(m**2*K)": "Btu_it/(hour*ft**2*degR)",
     },
 }
 _PRETTY = {
@@ -396,7 +407,8 @@ _PRETTY = {
     "m**3/h": "m³/h", "ft**3/min": "ft³/min", "kg/m**3": "kg/m³", "lb/ft**3": "lb/ft³", "": "",
     "g/mol": "g/mol", "lb/lbmol": "lb/lbmol", "m": "m", "ft": "ft", "K": "K", "Pa": "Pa",
     "J/kg": "J/kg", "J/(kg*K)": "J/(kg·K)", "J": "J", "J/K": "J/K", "W": "W", "m**3/s": "m³/s",
-    "kg/mol": "kg/mol", "mol/s": "mol/s",
+    "kg/mol": "kg/mol", "mol/s": "mol/s", "s": "s", "m**2": "m²", "ft**2": "ft²",
+    "W/(m**2*K)": "W/(m²·K)", "Btu_it/(hour*ft**2*degR)": "Btu/(h·ft²·°R)",
     "Btu_it/lb": "Btu/lb", "Btu_it/(lb*degR)": "Btu/(lb·°R)", "Btu_it": "Btu", "Btu_it/degR": "Btu/°R",
 }
 

@@ -39,6 +39,7 @@ class LegResult:
     path: tuple[State, ...]       # states along the path, start to end
     warnings: tuple[str, ...] = ()
     facts: tuple[Finding, ...] = ()   # statements about the leg (formula chosen, n derived), as codes
+    series: dict | None = None    # a vessel leg's time series: t [s], P [Pa], T [K], m [kg], m_dot [kg/s]
 
 
 def polytropic_work(P1V1: float, r: float, n: float) -> float:
