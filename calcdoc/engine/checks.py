@@ -67,6 +67,13 @@ def locations(job: Job, results: Results, q: Quantity, at: tuple[str, ...], wher
             return (Calc(f"{q.symbol} ({leg.name})", a / b, "", "{x2} / {x1}", "ratio.leg",
                          {"x2": Term(f"{sym}_{leg.i + 1}", a, _attr_unit(q.attr)),
                           "x1": Term(f"{sym}_{leg.i}", b, _attr_unit(q.attr))}), leg.name)
+        if q.scope == "change":
+            a, b = getattr(results.states[leg.i], q.attr, None), getattr(results.states[leg.i - 1], q.attr, None)
+            if a is None or b is None:
+                return None, leg.name
+            return (Calc(f"{q.symbol} ({leg.name})", a - b, q.unit, "{x2} − {x1}", "prop.change",
+                         {"x2": Term(f"{q.attr}_{leg.i + 1}", a, q.unit), "x1": Term(f"{q.attr}_{leg.i}", b, q.unit)}),
+                    leg.name)
         c = leg.quantities.get(q.attr)
         if c is None or c.value is None or not math.isfinite(c.value):
             return None, leg.name

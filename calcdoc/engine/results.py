@@ -11,6 +11,8 @@ from ..physics.calc import Calc
 from ..physics.gas import State
 
 RESULTS_SCHEMA = "calcdoc-results/1"
+#: SI units of a vessel leg's time series.
+SERIES_UNITS = {"t": "s", "P": "Pa", "T": "K", "m": "kg", "m_dot": "kg/s", "T_wall": "K"}
 
 
 @dataclass(frozen=True)
@@ -117,6 +119,8 @@ def to_json(res: Results) -> dict[str, Any]:
             item[key] = q(c.value, c.unit)
         if "n" not in item:
             item["n"] = q(None, "")
+        if getattr(leg, "series", None):
+            item["series"] = {k: {"unit": SERIES_UNITS[k], "values": list(v)} for k, v in leg.series.items()}
         item["calcs"] = [c.trace() for c in leg.calcs]
         legs.append(item)
     checks = [{"name": c.name, "quantity": c.quantity, "at": c.where, "value": q(c.value.value, c.unit),

@@ -20,7 +20,9 @@ from .limits import Places, read_limits
 from .model import GasSpec, Input, Job, LegSpec, Site, StartSpec, TitleBlock, keys_of
 from .reader import Reader, describe as _describe
 from .source import MAX_BYTES as _MAX_BYTES, Node, decode, leaves, load as _load_yaml
+from .solve import read_solve
 from .sweep import read_sweep
+from .vesselfile import read_vessel, read_vessel_leg
 
 __all__ = ["CLOSED_PROCESSES", "FLOW_PROCESSES", "load", "loads"]
 
@@ -76,6 +78,7 @@ class _Validator(Reader):
     def __init__(self, name: str):
         super().__init__(name, required_hints=_REQUIRED_HINT)
         self.option_nodes: dict[str, dict[str, Node]] = {}
+        self.vessel_node: Node | None = None
 
     # -- sections ---------------------------------------------------------------------------------
     def job(self, tree: Node, data: bytes) -> Job | None:
@@ -85,19 +88,31 @@ class _Validator(Reader):
             if ver.value != SCHEMA_VERSION or isinstance(ver.value, bool):
                 self.add(ver, f"schema version {ver.value!r} is not supported", f"write 'calcdoc: {SCHEMA_VERSION}'")
         calc = self.title_block(top.get("calc"))
-        system = self.enum(top.get("system"), ("closed", "flow"), default="closed")
+        system = self.enum(top.get("system"), ("closed", "flow", "vessel"), default="closed")
         unit_system = self.enum(top.get("units"), ("SI", "US"), default="SI")
         self.system = unit_system or "SI"
         site = self.site(top.get("site"))
         gas = self.gas(top.get("gas"))
+        vessel = None
+        if system == "vessel":
+            if "vessel" not in top:
+                self.add(tree, "missing required key 'vessel'", "a vessel job gives its vessel: vessel: {volume: 2 m3}",
+                         path="vessel")
+            vessel = read_vessel(self, top.get("vessel"))
+        elif "vessel" in top:
+            self.add(top["vessel"], f"a vessel block is given, and this job is a {system} system",
+                     "set system: vessel for a vessel that fills or empties over time, or remove the block")
+        self.vessel_node = top.get("vessel")
         start = self.start(top.get("start"), system)
         legs = self.legs(top.get("legs"), system)
         assumptions = tuple(self.text(n) for n in self.seq(top.get("assumptions")))
         self.seq(top.get("limits"))
         if self.problems or calc is None or gas is None or start is None or system is None or unit_system is None:
             return None
+        if system == "vessel" and vessel is None:
+            return None
         return Job(self.name, data, hashlib.sha256(data).hexdigest(), calc, unit_system, site, gas, system,
-                   start, tuple(legs), (), assumptions, (), {}, leaves(tree))
+                   start, tuple(legs), (), assumptions, (), {}, leaves(tree), vessel=vessel)
 
     def references(self, tree: Node, job: Job) -> Job:
         """The second pass: steady-flow leg options, limits and sweep, which refer to the legs and inputs."""
@@ -108,8 +123,10 @@ class _Validator(Reader):
         places = Places(legs)
         limits = read_limits(self, self.seq(tree.value.get("limits")), job.system, places)
         sweep = read_sweep(self, tree, job.system, places, self.inputs)
+        solve = read_solve(self, tree, job.system, places, self.inputs)
         inputs = tuple(sorted(self.inputs, key=lambda i: (i.line, i.col)))
-        job = dataclasses.replace(job, legs=legs, limits=limits, sweep=sweep, inputs=inputs, where=dict(self.where))
+        job = dataclasses.replace(job, legs=legs, limits=limits, sweep=sweep, solve=solve, inputs=inputs,
+                                  where=dict(self.where))
         if job.system == "flow" and not self.problems:
             self.problems += chain_problems(job)
         return job
@@ -234,7 +251,8 @@ class _Validator(Reader):
     def start(self, node: Node | None, system: str | None) -> StartSpec | None:
         if node is None:
             return None
-        keys = keys_of(StartSpec, "flow" if system == "flow" else "closed")
+        keys = (("pressure", "temperature") if system == "vessel"
+                else keys_of(StartSpec, "flow" if system == "flow" else "closed"))
         m = self.mapping(node, keys, required=("pressure", "temperature"), what="the start state")
         P = self.quantity(m.get("pressure"), "pressure")
         T = self.quantity(m.get("temperature"), "temperature")
@@ -242,7 +260,7 @@ class _Validator(Reader):
         vals = {k: self.quantity(m.get(k), kinds[k]) for k in kinds if k in keys}
         amount = [k for k in (("mass_flow", "molar_flow", "volume_flow", "standard_volume_flow") if system == "flow"
                               else ("volume", "mass")) if k in m]
-        if len(amount) != 1 and m:
+        if len(amount) != 1 and m and system != "vessel":
             which = "mass_flow, molar_flow, volume_flow or standard_volume_flow" if system == "flow" else "volume or mass"
             self.add(node, f"{'no amount of gas' if not amount else 'more than one amount: ' + ', '.join(amount)} is given",
                      f"give exactly one of {which}")
@@ -283,6 +301,8 @@ class _Validator(Reader):
         return out
 
     def leg(self, node: Node, system: str | None) -> LegSpec | None:
+        if system == "vessel":
+            return read_vessel_leg(self, node, None, self.vessel_node)
         flow = system == "flow"
         allowed = _FLOW_LEG_KEYS if flow else _CLOSED_LEG_KEYS
         m = self.mapping(node, allowed, required=("name", "process", "end"), what="a leg")
@@ -367,7 +387,8 @@ class _Validator(Reader):
                      "temperature or volume", path=f"{leg.path}.n")
 
 
-_TOP_KEYS = ("calcdoc", "calc", "units", "site", "gas", "system", "start", "legs", "limits", "assumptions", "sweep")
+_TOP_KEYS = ("calcdoc", "calc", "units", "site", "gas", "system", "vessel", "start", "legs", "limits", "assumptions",
+             "sweep", "solve")
 _CALC_KEYS = keys_of(TitleBlock)
 _CLOSED_LEG_KEYS = ("name", "process", "n", "end", "note")
 _FLOW_LEG_KEYS = _CLOSED_LEG_KEYS + FLOW_OPTION_KEYS

@@ -58,7 +58,7 @@ class Places:
                     add(node, f"'{name}' is a {proc} leg", f"{applies_text(q)}; name such a leg")
                 continue
             if name in self.labels:
-                if q.scope in ("leg", "ratio", "end"):
+                if q.scope in ("leg", "ratio", "change", "end"):
                     add(node, f"{q.name} is a quantity of a leg, but '{name}' is a state label",
                         f"name a leg: {', '.join(repr(n) for n in self.legs)}")
                 continue

@@ -114,6 +114,25 @@ MESSAGES: dict[str, tuple[str, str]] = {
     "limit.no_total": ("this job has no {title}", "name a quantity this job computes"),
     "limit.wrong_process": ("'{leg}' is a {process} leg", "{applies}; name such a leg"),
     "limit.state_lacks": ("state {label} has no {quantity}", "name another quantity"),
+    # vessels that fill and empty over time (calcdoc.physics.vessel)
+    "vessel.end_reached": ("leg '{leg}': the vessel is at {P:Pa} at the start of this {process} leg, already at or "
+                           "past its end pressure of {P_end:Pa}",
+                           "give an end pressure the {process} moves towards, or end the leg at a duration"),
+    "vessel.end_unreachable": ("leg '{leg}': the end pressure of {P_end:Pa} cannot be reached: the flow stops at "
+                               "{P_limit:Pa} (the back pressure of a discharge, the supply pressure of a fill)",
+                               "give an end pressure short of {P_limit:Pa}, or end the leg at a duration"),
+    "vessel.no_flow": ("leg '{leg}': no gas flows at the start of this {process} leg (vessel at {P:Pa}, the other "
+                       "side of the orifice at {P_other:Pa})",
+                       "a discharge needs a back pressure below the vessel pressure, a fill a supply pressure above it"),
+    "vessel.too_long": ("leg '{leg}': the vessel has not reached {P_end:Pa} after {t:.6g} s (it is at {P:Pa}); it "
+                        "approaches the back or supply pressure too slowly",
+                        "give an end pressure further from the back or supply pressure, or end the leg at a duration"),
+    "vessel.budget": ("leg '{leg}': the time integration needed more than {evaluations} evaluations and was "
+                      "stopped", "end the leg sooner, or check the orifice size and the end target"),
+    "vessel.integration": ("leg '{leg}': the time integration failed ({reason})",
+                           "check the orifice size and the end target"),
+    "vessel.empty": ("leg '{leg}': the vessel empties completely at t = {t:.6g} s",
+                     "end the leg at a pressure above the back pressure"),
 }
 
 _Speaker = Callable[[dict[str, Any], str], tuple[str, str]]

@@ -16,7 +16,7 @@ from ..errors import Problem
 from .quantities import Quantity
 
 __all__ = ["Drop", "FollowSpec", "GasSpec", "Input", "Job", "LegOptions", "LegSpec", "LimitSpec", "Site",
-           "Staging", "StartSpec", "SweepSpec", "TitleBlock"]
+           "SolveSpec", "Staging", "StartSpec", "SweepSpec", "TitleBlock", "VesselLegSpec", "VesselSpec", "WallSpec"]
 
 
 def key(kind: str, desc: str, systems: tuple[str, ...] = ("closed", "flow"), required: bool = False) -> Any:
@@ -165,6 +165,38 @@ class LegOptions:
 
 
 @dataclass(frozen=True)
+class WallSpec:
+    """The vessel wall as one lump: mass, specific heat, inner area and gas-side heat-transfer coefficient."""
+
+    mass: Input
+    specific_heat: Input
+    area: Input
+    heat_transfer_coefficient: Input
+
+
+@dataclass(frozen=True)
+class VesselSpec:
+    """A rigid vessel: its volume and, optionally, its wall (for legs with ``heat: wall``)."""
+
+    volume: Input
+    wall: WallSpec | None = None
+
+
+@dataclass(frozen=True)
+class VesselLegSpec:
+    """How a vessel leg fills or empties: the heat exchange, the orifice, the back pressure (discharge), or the
+    supply (fill: a pressure and temperature upstream of the orifice, or a mass flow and its temperature)."""
+
+    heat: str                                    # adiabatic, isothermal or wall
+    diameter: Input | None = None
+    discharge_coefficient: Input | None = None
+    back_pressure: Input | None = None
+    supply_pressure: Input | None = None
+    supply_temperature: Input | None = None
+    mass_flow: Input | None = None
+
+
+@dataclass(frozen=True)
 class LegSpec:
     """One leg as the job file gives it."""
 
@@ -177,6 +209,7 @@ class LegSpec:
     n: Input | None = None
     options: LegOptions = LegOptions()
     note: str = ""
+    vessel: VesselLegSpec | None = None   # vessel legs (system: vessel)
 
 
 @dataclass(frozen=True)
@@ -221,6 +254,25 @@ class SweepSpec:
 
 
 @dataclass(frozen=True)
+class SolveSpec:
+    """One input found so that a result meets a target: the input's place in the job text, the bracket (in
+    the unit the bracket is written in) and the target (a quantity at one place, and the value it must equal)."""
+
+    vary: str                                   # the path as written
+    value_path: str                             # key path of the varied value
+    span: tuple[int, int]                       # character span of the value in the job text
+    cut: tuple[int, int] | None                 # span of the whole solve block (left out of each trial's job)
+    unit: str                                   # unit text of the bracket ("L", "bar", "" for a plain number)
+    bracket: tuple[float, float]                # the ends, numbers in ``unit``
+    entered: tuple[str, str]                    # the ends as entered
+    quantity: Quantity
+    at: tuple[str, ...]
+    equals: Input
+    path: str                                   # key path of the solve block
+    where: dict[str, tuple[int, int]] = field(default_factory=dict)   # line, col of vary, between, so_that, at
+
+
+@dataclass(frozen=True)
 class Job:
     """A validated job: everything the engine needs, each input with its place in the file."""
 
@@ -231,7 +283,7 @@ class Job:
     units: str                      # report unit system: "SI" or "US"
     site: Site
     gas: GasSpec
-    system: str                     # "closed" or "flow"
+    system: str                     # "closed", "flow" or "vessel"
     start: StartSpec
     legs: tuple[LegSpec, ...]
     limits: tuple[LimitSpec, ...] = ()
@@ -240,6 +292,8 @@ class Job:
     where: dict[str, tuple[int, int]] = field(default_factory=dict)
     leaves: tuple[tuple[str, str, int], ...] = ()   # every scalar of the file: (path, as entered, line)
     sweep: SweepSpec | None = None
+    vessel: VesselSpec | None = None
+    solve: SolveSpec | None = None
 
     @property
     def text(self) -> str:

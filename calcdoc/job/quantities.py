@@ -13,7 +13,7 @@ from .. import units
 __all__ = ["ALIASES", "QUANTITIES", "REVERSIBLE", "SIGNED", "Quantity", "applies", "applies_text", "place_text",
            "quantity_named", "quantity_problem", "series_name"]
 
-BOTH = ("closed", "flow")
+BOTH = ("closed", "flow", "vessel")     # state properties and leg ratios exist in every system
 
 
 @dataclass(frozen=True)
@@ -22,8 +22,9 @@ class Quantity:
 
     scope: ``state`` (a property of a state: at a state label, or at a leg's end state), ``record``
     (an extensive value kept beside the state: volume, volume flow), ``leg`` (a quantity of a leg),
-    ``ratio`` (end over start of a leg, of the state attribute ``attr``) or ``end`` (a state
-    property at a leg's end only, e.g. discharge temperature).
+    ``ratio`` (end over start of a leg, of the state attribute ``attr``), ``change`` (end minus start of
+    a leg, of the record attribute ``attr``) or ``end`` (a state property at a leg's end only, e.g.
+    discharge temperature).
     """
 
     name: str
@@ -68,14 +69,27 @@ QUANTITIES: dict[str, Quantity] = {q.name: q for q in (
     _q("volume_ratio", "dimensionless", "ratio", "v", symbol="r_v"),
     _q("n", "dimensionless", "leg", "n", title="polytropic exponent"),
     _q("W_by_gas", "energy", "leg", "W_by_gas", ("closed",), symbol="W", title="work done by the gas"),
-    _q("Q_to_gas", "energy", "leg", "Q_to_gas", ("closed",), symbol="Q", title="heat added to the gas"),
+    _q("Q_to_gas", "energy", "leg", "Q_to_gas", ("closed", "vessel"), symbol="Q", title="heat added to the gas"),
     _q("work_on_gas", "energy", "leg", "W_by_gas", ("closed",), symbol="W_on", title="work done on the gas",
        sign=-1.0),
-    _q("heat_from_gas", "energy", "leg", "Q_to_gas", ("closed",), symbol="Q_out", title="heat removed from the gas",
+    _q("heat_from_gas", "energy", "leg", "Q_to_gas", ("closed", "vessel"), symbol="Q_out",
+       title="heat removed from the gas",
        sign=-1.0),
     _q("dU", "energy", "leg", "dU", ("closed",), symbol="ΔU", title="change of internal energy"),
     _q("dH", "energy", "leg", "dH", ("closed",), symbol="ΔH", title="change of enthalpy"),
     _q("dS", "entropy", "leg", "dS", ("closed",), symbol="ΔS", title="change of entropy"),
+    _q("volume_change", "volume", "change", "V", ("closed",), symbol="ΔV", title="volume change"),
+    # vessels that fill and empty over time
+    _q("duration", "time", "leg", "duration", ("vessel",), symbol="t"),
+    _q("min_temperature", "temperature", "leg", "T_min", ("vessel",), symbol="T_min",
+       title="minimum gas temperature"),
+    _q("max_temperature", "temperature", "leg", "T_max", ("vessel",), symbol="T_max",
+       title="maximum gas temperature"),
+    _q("min_wall_temperature", "temperature", "leg", "T_wall_min", ("vessel",), symbol="T_w,min",
+       title="minimum wall temperature"),
+    _q("max_wall_temperature", "temperature", "leg", "T_wall_max", ("vessel",), symbol="T_w,max",
+       title="maximum wall temperature"),
+    _q("mass_change", "mass", "leg", "mass_change", ("vessel",), symbol="Δm", title="change of the mass in the vessel"),
     _q("work_in", "specific_energy", "leg", "work_in", ("flow",), symbol="w_in", title="specific work input"),
     _q("head", "specific_energy", "leg", "head", ("flow",)),
     _q("head_isentropic", "specific_energy", "leg", "head_isentropic", ("flow",), title="isentropic head"),
@@ -110,7 +124,8 @@ ALIASES = {
     "P": "pressure", "T": "temperature", "v": "specific_volume", "rho": "density", "u": "internal_energy",
     "h": "enthalpy", "s": "entropy", "compressibility": "Z", "V": "volume", "V_dot": "volume_flow",
     "work_by_gas": "W_by_gas", "heat_to_gas": "Q_to_gas", "polytropic_exponent": "n",
-    "polytropic_efficiency": "eta_p", "isentropic_efficiency": "eta_s",
+    "polytropic_efficiency": "eta_p", "isentropic_efficiency": "eta_s", "dV": "volume_change", "time": "duration",
+    "T_min": "min_temperature", "T_max": "max_temperature",
 }
 
 
@@ -152,8 +167,10 @@ def quantity_problem(q: Quantity | None, name: str, system: str) -> tuple[str, s
         return (f"'{name}' is not a quantity calcdoc knows",
                 f"{hint}valid for a {system} system: {', '.join(n for n, x in QUANTITIES.items() if system in x.systems)}")
     if system not in q.systems:
-        other = "steady-flow" if q.systems == ("flow",) else "closed-system"
-        return (f"{q.name} is a {other} quantity, and this job is a {'steady-flow' if system == 'flow' else 'closed'} system",
+        words = {"flow": "steady-flow", "closed": "closed-system", "vessel": "vessel"}
+        other = " and ".join(words[x] for x in q.systems)
+        this = {"flow": "steady-flow", "closed": "closed", "vessel": "vessel"}[system]
+        return (f"{q.name} is a {other} quantity, and this job is a {this} system",
                 f"valid for a {system} system: {', '.join(n for n, x in QUANTITIES.items() if system in x.systems)}")
     return None
 

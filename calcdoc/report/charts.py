@@ -201,3 +201,32 @@ def sweep_chart(sweep: dict, system: str) -> str:
     out = _svg(fig)
     plt.close(fig)
     return out
+
+
+def time_chart(results, system: str) -> str:
+    """Pressure and gas temperature in a vessel against time (two panels sharing the time axis), legs one
+    after another, each along its computed time series; the wall temperature dashed where a wall is modelled."""
+    plt = _pyplot()
+    fig, (axP, axT) = plt.subplots(2, 1, figsize=(6.3, 4.6), sharex=True)
+    t0 = 0.0
+    for k, leg in enumerate(results.legs):
+        ts = leg.series or {}
+        if not ts:
+            continue
+        t = [t0 + x for x in ts["t"]]
+        colour = PALETTE[k % len(PALETTE)]
+        label = f"{leg.i}→{leg.i + 1}  {leg.name}"
+        axP.plot(t, _conv(ts["P"], "Pa", system), color=colour, label=label)
+        axT.plot(t, _conv(ts["T"], "K", system), color=colour, label=label)
+        if "T_wall" in ts:
+            axT.plot(t, _conv(ts["T_wall"], "K", system), color=colour, ls="--", lw=1.1, label=f"{leg.name}: wall")
+        t0 = t[-1]
+    axP.set_ylabel(_label("pressure P (absolute)", "Pa", system))
+    axT.set_ylabel(_label("temperature T", "K", system))
+    axT.set_xlabel(_label("time t", "s", system))
+    for ax in (axP, axT):
+        ax.legend(fontsize=7, loc="best")
+    fig.tight_layout()
+    out = _svg(fig)
+    plt.close(fig)
+    return out

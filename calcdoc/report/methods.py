@@ -20,6 +20,13 @@ class Method:
 
 
 REFERENCES: dict[str, str] = {
+    "cengel2019cv": "Çengel, Y. A., Boles, M. A., Kanoğlu, M. Thermodynamics: An Engineering Approach, 9th ed. "
+                    "McGraw-Hill Education, New York, 2019. Ch. 5 (mass and energy analysis of control volumes, "
+                    "unsteady-flow processes: charging and discharging of rigid vessels), ch. 17 (compressible flow: "
+                    "isentropic flow through nozzles, critical ratios, choked flow).",
+    "virtanen2020": "Virtanen, P., Gommers, R., Oliphant, T. E., et al. SciPy 1.0: fundamental algorithms for "
+                    "scientific computing in Python. Nature Methods 17, 261–272 (2020). "
+                    "doi:10.1038/s41592-019-0686-2. (scipy.integrate.solve_ivp, scipy.optimize.brentq.)",
     "cengel2019": "Çengel, Y. A., Boles, M. A., Kanoğlu, M. Thermodynamics: An Engineering Approach, "
                   "9th ed. McGraw-Hill Education, New York, 2019. Ch. 4 (moving boundary work, polytropic "
                   "process), ch. 7 (entropy, isentropic relations of ideal gases).",
@@ -141,6 +148,25 @@ METHODS: dict[str, Method] = {
                         ("schultz1962", "asmeptc10")),
     "schultz.head": Method("Polytropic head and efficiency by the Schultz method, as used in ASME PTC 10",
                            "H_p = f·n/(n − 1)·(P2·v2 − P1·v1);  η_p = H_p/(h2 − h1)", ("schultz1962", "asmeptc10")),
+    # -- vessels over time (calcdoc.physics.vessel) ------------------------------------------------------
+    "prop.change": Method("Change of a property over a leg, end minus start", "ΔX = X_2 − X_1", ("cengel2019",)),
+    "orifice.area": Method("Flow area of a round orifice", "A = π·d²/4", ("cengel2019",)),
+    "nozzle.critical": Method("Critical (choking) pressure ratio of isentropic nozzle flow of an ideal gas",
+                              "P*/P_0 = (2/(k + 1))^(k/(k − 1))", ("cengel2019cv",)),
+    "nozzle.ideal": Method("Mass flow of an isentropic nozzle of an ideal gas times a discharge coefficient, choked "
+                           "or subsonic as the pressure ratio requires",
+                           "ṁ = C_d·A·P_0·√(k/(R·T_0))·(2/(k + 1))^((k + 1)/(2(k − 1))) (choked);  "
+                           "ṁ = C_d·A·P_0/√(R·T_0)·√(2k/(k − 1)·(r^(2/k) − r^((k + 1)/k))), r = P_b/P_0 (subsonic)",
+                           ("cengel2019cv",)),
+    "nozzle.real": Method("Mass flow of an isentropic nozzle of a real gas times a discharge coefficient: the "
+                          "largest mass flux along the isentrope from the stagnation state (choked) or the flux at "
+                          "the back pressure (subsonic), properties from the equation of state",
+                          "ṁ = C_d·A·max over P_b ≤ P ≤ P_0 of ρ(P, s_0)·√(2·(h_0 − h(P, s_0)))",
+                          ("cengel2019cv", "bell2014")),
+    "vessel.balance": Method("Mass and energy balance of a rigid vessel with uniform contents, integrated in time "
+                             "(SciPy solve_ivp, Dormand–Prince 8(5,3) pair), with an event at the end pressure",
+                             "dm/dt = ṁ_in − ṁ_out;  d(m·u)/dt = ṁ_in·h_in − ṁ_out·h + Q̇",
+                             ("cengel2019cv", "virtanen2020")),
     "staging.ratio": Method("Equal stage pressure ratios with intercooler pressure drops",
                             "r^N·P_in·(1 − δ)^(N−1) = P_out  (or with absolute drops, solved for r)",
                             ("cengel2019",)),

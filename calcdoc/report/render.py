@@ -16,7 +16,7 @@ from urllib.parse import unquote, urlsplit
 from .. import units
 from ..engine import software_versions
 from . import format as fmt, methods, words
-from .charts import diagrams, sweep_chart
+from .charts import diagrams, sweep_chart, time_chart
 
 CAUTIONS = (
     "Compressed gas stores energy. A vessel, cylinder or pipe that fails at pressure can release it "
@@ -33,6 +33,16 @@ CAUTIONS = (
     "decisions.",
 )
 
+VESSEL_CAUTIONS = (
+    "A depressuring time computed here is not a relief-device sizing: relief valves, rupture discs and "
+    "depressuring systems are sized and selected under the applicable relief and pressure-vessel codes, for "
+    "their own governing cases.",
+    "Cold blowdown: the gas and the wall cool as the vessel empties. Temperatures below the minimum design "
+    "metal temperature of the vessel, its nozzles and connected piping raise brittle-fracture questions; check "
+    "them against the vessel's rating and the material and impact-test rules of the applicable code. A fast "
+    "fill heats the gas and the wall: check the upper design temperature and any non-metallic liner or seal.",
+)
+
 ENGINE_ASSUMPTIONS = {
     "closed": (
         "The gas is a fixed mass (no leakage past seals or valves).",
@@ -46,6 +56,15 @@ ENGINE_ASSUMPTIONS = {
         "Kinetic and potential energy of the gas are neglected (total and static states are the same).",
         "A real-gas stage follows the path of constant polytropic efficiency, integrated with the equation of "
         "state; the Schultz (ASME PTC 10) result from the same end states is shown beside it.",
+    ),
+    "vessel": (
+        "The vessel is rigid; the gas in it is uniform in pressure and temperature at every instant (well mixed).",
+        "The orifice flow is an isentropic nozzle flow from the upstream stagnation state, choked or subsonic as "
+        "the pressure ratio requires, times the discharge coefficient given; quasi-steady at each instant.",
+        "Kinetic and potential energy of the gas in the vessel are neglected; gas leaves at the vessel's state.",
+        "Heat: adiabatic (none), isothermal (whatever holds the gas temperature), or from a wall of one "
+        "uniform temperature through a constant heat-transfer coefficient; the wall exchanges no heat with "
+        "the surroundings.",
     ),
 }
 
@@ -99,6 +118,9 @@ def context(results) -> dict:
     charts = {}
     if results.legs:
         charts = diagrams(results, system)
+    if results.system == "vessel" and results.legs:
+        charts["time"] = time_chart(results, system)
+        charts["wall"] = any("T_wall" in (leg.series or {}) for leg in results.legs)
     if results.extra.get("sweep"):
         charts["sweep"] = sweep_chart(results.extra["sweep"], system)
     return {
@@ -114,7 +136,7 @@ def context(results) -> dict:
         "input_legs": input_legs,
         "job_lines": lines,
         "job_file_name": job_file_name(job),
-        "cautions": CAUTIONS,
+        "cautions": CAUTIONS + (VESSEL_CAUTIONS if results.system == "vessel" else ()),
         "engine_assumptions": ENGINE_ASSUMPTIONS.get(results.system, ()),
         "inputs": sorted(job.inputs, key=lambda i: (i.line, i.col)),
         "charts": charts,

@@ -26,6 +26,13 @@ WARNINGS: dict[str, str] = {
     "ideal.z_departs": "{where}: real {fluid} has a compressibility factor Z = {Z:.4g} at P = {P:Pa~5} and T = {T:K~4} "
                        "(CoolProp), so the ideal-gas model is off by about {percent:.2g} % in density there. Consider "
                        "model: real.",
+    "vessel.cold_gas": ("Leg '{leg}': the gas temperature falls to {T:K~4}, below {T_limit:K~4} (common practice: "
+                        "the usual default minimum design metal temperature of carbon-steel vessels). Cold blowdown "
+                        "raises brittle-fracture questions: check the minimum design metal temperature of the vessel "
+                        "and its connected piping under the applicable code."),
+    "vessel.cold_wall": ("Leg '{leg}': the wall temperature falls to {T:K~4}, below {T_limit:K~4} (common practice: "
+                         "the usual default minimum design metal temperature of carbon-steel vessels). Check the "
+                         "vessel material's impact-test exemption or rating under the applicable code."),
 }
 for _what, _words in (("saturation", "saturation temperature"), ("dew", "dew temperature")):
     WARNINGS[f"phase.{_what}.below"] = ("{where}: the state at P = {P:Pa}, T = {T:K~4} is at or below the " + _words
@@ -47,6 +54,8 @@ FACTS: dict[str, str] = {
     "throttle.two_phase": "The outlet is two-phase: vapour quality x = {x:.4f} at the saturation temperature {T:K~4}.",
     "flow.reversible": "Internally reversible steady flow: shaft work in = ∫v·dP along the path; the flow work is "
                        "−∫v·dP.",
+    "vessel.integrated": ("Integrated in time with SciPy solve_ivp (DOP853) to a relative tolerance of {rtol:.0e} "
+                          "and {atol:.0e} K on temperatures; {n} evaluations of the balance."),
 }
 #: note code of a calc (which form was used, what a value means) → text
 NOTES: dict[str, str] = {
@@ -90,6 +99,11 @@ NOTES: dict[str, str] = {
     "total.heating": "total heating duty (heat added to the gas)",
     "total.comp_shaft": "total compressor shaft power",
     "total.exp_shaft": "total expander shaft power output",
+    "vessel.choked": "choked (sonic) at the throat at the start of the leg",
+    "vessel.subsonic": "subsonic at the start of the leg (pressure ratio above the critical ratio)",
+    "vessel.adiabatic": "adiabatic vessel: Q̇ = 0",
+    "vessel.isothermal": "isothermal vessel: Q̇ holds the gas temperature constant",
+    "vessel.wall": "heat from the wall: Q̇ = h·A·(T_w − T), m_w·c_w·dT_w/dt = −Q̇",
 }
 FACTS["staging.given"] = ("Staged into {stages} stages with equal pressure ratios (allowing for the intercooler "
                           "pressure drops), as the job asks.")
