@@ -145,9 +145,9 @@ def to_json(res: Results) -> dict[str, Any]:
         "passed": res.passed,
         "warnings": list(res.warnings),
     }
-    if res.system == "closed":
-        out.pop("flow")
-    else:
+    if res.system == "flow":
         out.pop("mass")
+    else:
+        out.pop("flow")
     out.update(res.extra)
     return out

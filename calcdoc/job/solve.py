@@ -129,8 +129,20 @@ def trial_text(spec: SolveSpec, x: float) -> str:
 
 
 def _show(job: Job, value: float) -> str:
-    q = job.solve.quantity
-    return units.say(value, q.unit, job.units, 7) if q.unit else f"{value:.7g}"
+    """A value of the target quantity in the job's units, and in the unit the target was written in."""
+    sp = job.solve
+    q = sp.quantity
+    if not q.unit:
+        return f"{value:.7g}"
+    text = units.say(value, q.unit, job.units, 7)
+    m = _NUM.match(sp.equals.entered)
+    unit = m.group("unit") if m else ""
+    if unit and q.kind not in ("temperature", "pressure") and unit not in text:
+        try:
+            text += f" ({value / units.to_si(1.0, unit, q.kind):.7g} {unit})"
+        except Exception:  # pint raises several unrelated types; the value in the job's units stands alone
+            pass
+    return text
 
 
 def _at(job: Job, key: str, found: str, valid: str) -> Problem:
