@@ -11,7 +11,7 @@ from collections.abc import Iterable
 from dataclasses import MISSING, fields
 from typing import Any
 
-from . import jobfile, sweep
+from . import jobfile, solve, sweep, vesselfile
 from .flowopts import INTERCOOLER_KEYS, STAGING_KEYS
 from .limits import LIMIT_KEYS
 from .model import GasSpec, Site, StartSpec, TitleBlock, keys_of
@@ -22,6 +22,7 @@ __all__ = ["job_schema"]
 SCHEMA_ID = "https://calcdoc.invalid/schema/job-1.json"
 CLOSED_START_KEYS = keys_of(StartSpec, "closed")
 FLOW_START_KEYS = keys_of(StartSpec, "flow")
+VESSEL_START_KEYS = ("pressure", "temperature")
 _TEXT = {"type": "string"}
 _BY_KIND: dict[str, dict[str, Any]] = {
     "text": _TEXT, "date": {"type": "string", "pattern": "^[0-9]{4}-[0-9]{2}-[0-9]{2}$"},
@@ -107,10 +108,11 @@ def job_schema() -> dict[str, Any]:
         "units": {"enum": ["SI", "US"]},
         "site": _obj(keys_of(Site), _model_props(Site)),
         "gas": _obj(keys_of(GasSpec), _model_props(GasSpec), _required(GasSpec)),
-        "system": {"enum": ["closed", "flow"]},
+        "system": {"enum": ["closed", "flow", "vessel"]},
         "start": _obj(tuple(dict.fromkeys(CLOSED_START_KEYS + FLOW_START_KEYS)), start_props,
                       ("pressure", "temperature"), "state 1"),
-        "legs": legs_of(jobfile._FLOW_LEG_KEYS, jobfile.CLOSED_PROCESSES + jobfile.FLOW_PROCESSES),
+        "legs": {"type": "array", "minItems": 1,
+                 "description": "the legs, in order; their keys depend on the system (closed, flow or vessel)"},
         "limits": {"type": "array", "items": {
             **_obj(LIMIT_KEYS, {"name": text, "quantity": {"enum": quantities}, "at": at,
                                        "max": _qty("upper limit"), "min": _qty("lower limit"),
@@ -128,6 +130,38 @@ def job_schema() -> dict[str, Any]:
                 {"enum": quantities}, _obj(sweep.FOLLOW_KEYS, {"quantity": {"enum": quantities}, "at": at}, ("quantity",))]}},
         }, ("input", "follow")), "oneOf": [{"required": ["values"]}, {"required": ["range"]}]},
     }
+    vessel_leg_props = {
+        "name": text, "note": text, "process": {"enum": list(vesselfile.VESSEL_PROCESSES)},
+        "heat": {"enum": list(vesselfile.HEAT), "description": "heat exchange of the gas (default adiabatic)"},
+        "orifice": _obj(vesselfile.ORIFICE_KEYS, {
+            "diameter": _qty("orifice diameter"),
+            "discharge_coefficient": {"type": "number", "exclusiveMinimum": 0, "maximum": 1},
+            "back_pressure": _qty("pressure downstream of the orifice (discharge)")},
+            ("diameter", "discharge_coefficient")),
+        "supply": _obj(vesselfile.SUPPLY_KEYS, {
+            "pressure": _qty("supply pressure upstream of the orifice"), "temperature": _qty("supply temperature"),
+            "mass_flow": _qty("delivered mass flow (instead of a supply pressure and orifice)")}, ("temperature",)),
+        "end": _obj(vesselfile.VESSEL_TARGETS, {"pressure": _qty("end pressure"), "duration": _qty("duration")},
+                    desc="the end of the leg: a pressure or a duration"),
+    }
+    props["vessel"] = _obj(vesselfile.VESSEL_KEYS, {
+        "volume": _qty("vessel volume"),
+        "wall": _obj(vesselfile.WALL_KEYS, {
+            "mass": _qty("wall mass"), "specific_heat": _qty("wall specific heat"),
+            "area": _qty("inner wall area"), "heat_transfer_coefficient": _qty("gas-side heat-transfer coefficient")},
+            vesselfile.WALL_KEYS)}, ("volume",), "the vessel (system: vessel)")
+    props["solve"] = _obj(solve.SOLVE_KEYS, {
+        "vary": {"type": "string", "description": "path of the input, e.g. start.volume or legs[0].end.pressure"},
+        "between": {"type": "array", "minItems": 2, "maxItems": 2, "items": {"type": ["string", "number"]},
+                    "description": "the bracket, in the units of the varied input"},
+        "so_that": _obj(solve.SO_THAT_KEYS, {"quantity": {"enum": quantities}, "at": at,
+                                             "equals": _qty("the target value")}, ("quantity", "equals")),
+    }, solve.SOLVE_KEYS, "find the input that meets a target")
+    vessel = {"properties": {
+        "start": _obj(VESSEL_START_KEYS, start_props, ("pressure", "temperature")),
+        "legs": {"type": "array", "minItems": 1,
+                 "items": _obj(vesselfile.VESSEL_LEG_KEYS, vessel_leg_props, ("name", "process", "end"))}},
+        "required": ["vessel"]}
     closed = {"properties": {
         "start": _obj(CLOSED_START_KEYS, start_props, ("pressure", "temperature")),
         "legs": legs_of(jobfile._CLOSED_LEG_KEYS, jobfile.CLOSED_PROCESSES)}}
@@ -142,7 +176,10 @@ def job_schema() -> dict[str, Any]:
         "properties": {k: props.get(k, {}) for k in jobfile._TOP_KEYS},
         "required": ["calcdoc", "calc", "gas", "start", "legs"],
         "additionalProperties": False,
-        "if": {"properties": {"system": {"const": "flow"}}, "required": ["system"]},
-        "then": flow,
-        "else": closed,
+        "allOf": [
+            {"if": {"properties": {"system": {"const": "flow"}}, "required": ["system"]}, "then": flow},
+            {"if": {"properties": {"system": {"const": "vessel"}}, "required": ["system"]}, "then": vessel},
+            {"if": {"not": {"properties": {"system": {"enum": ["flow", "vessel"]}}, "required": ["system"]}},
+             "then": closed},
+        ],
     }

@@ -109,7 +109,49 @@ assumptions:
   - Kinetic and potential energy changes of the gas are negligible.
 """
 
-STARTERS = {"closed": _CLOSED, "flow": _FLOW}
+_VESSEL = _HEAD.format(title="Receiver blowdown and pump-up", fluid="Air") + """
+system: vessel                   # a rigid vessel that fills or empties through an orifice over time
+
+vessel:
+  volume: 2 m3
+  wall:                          # needed only for legs with heat: wall (the wall as one lump)
+    mass: 800 kg
+    specific_heat: 0.49 kJ/(kg*K)
+    area: 9 m2                   # inner surface wetted by the gas
+    heat_transfer_coefficient: 8 W/(m2*K)
+
+start:                           # state 1: the gas in the vessel
+  pressure: 10 barg
+  temperature: 20 degC
+
+legs:                            # each leg starts where the previous one ended
+  - name: Blowdown
+    process: discharge           # discharge or fill
+    orifice: {diameter: 10 mm, discharge_coefficient: 0.85, back_pressure: 0 barg}
+    heat: wall                   # adiabatic, isothermal or wall (uses vessel.wall)
+    end: {pressure: 1 barg}      # or duration: 15 min
+  - name: Pump-up
+    process: fill
+    supply: {mass_flow: 0.05 kg/s, temperature: 40 degC}   # or {pressure, temperature} and an orifice
+    heat: adiabatic
+    end: {pressure: 10 barg}
+
+limits:                          # design limits; any failing check makes `calcdoc run` exit 1
+  - name: Blowdown time
+    quantity: duration
+    at: [Blowdown]
+    max: 15 min
+    basis: Operating procedure (replace with your source)
+  - name: Coldest gas
+    quantity: min_temperature    # min_wall_temperature with heat: wall
+    min: -46 degC
+    basis: Vessel minimum design metal temperature (replace with your nameplate value)
+
+assumptions:
+  - The gas in the vessel is well mixed.
+"""
+
+STARTERS = {"closed": _CLOSED, "flow": _FLOW, "vessel": _VESSEL}
 
 
 def starter(system: str) -> str:

@@ -65,8 +65,16 @@ def summary(results, written) -> None:
                   f"Q to gas = {show(qd['Q_to_gas'].value, 'J')}")
         elif "work_in" in qd:
             print(_flow_leg_line(leg, show))
+        elif "duration" in qd:
+            print(f"  leg {leg.i}→{leg.i + 1} {leg.name} ({leg.process}): t = {show(qd['duration'].value, 's')}, "
+                  f"T min = {show(qd['T_min'].value, 'K')}, T max = {show(qd['T_max'].value, 'K')}")
         else:
             print(f"  leg {leg.i}→{leg.i + 1} {leg.name} ({leg.process})")
+    solve = results.extra.get("solve")
+    if solve:
+        print(f"  solved: {solve['vary']} = {solve['entered']} ({solve['quantity']} = "
+              f"{show(solve['achieved']['value'], solve['achieved']['unit']) if solve['achieved']['unit'] else solve['achieved']['value']}"
+              f", {solve['iterations']} iterations)")
     for c in results.checks:
         print(f"  check {c.name} at {c.where}: {c.status.upper()}")
     for w in results.warnings:

@@ -76,7 +76,7 @@ def test_schema_keys_follow_the_validator():
         assert msg.endswith("valid keys here: " + ", ".join(keys))
 
 
-@pytest.mark.parametrize("system", ["closed", "flow"])
+@pytest.mark.parametrize("system", ["closed", "flow", "vessel"])
 def test_new_writes_a_starter_that_passes_check(tmp_path, capsys, system):
     path = tmp_path / f"{system}.yaml"
     assert cli.main(["new", "--system", system, str(path)]) == 0
@@ -89,6 +89,28 @@ def test_new_writes_a_starter_that_passes_check(tmp_path, capsys, system):
 def test_closed_starter_runs_and_passes(tmp_path):
     res = run(loads(STARTERS["closed"], "starter.yaml"))
     assert res.checks and res.passed
+
+
+def test_vessel_starter_runs_and_passes():
+    res = run(loads(STARTERS["vessel"], "starter.yaml"))
+    assert res.system == "vessel" and res.checks and res.passed
+    assert [leg.process for leg in res.legs] == ["discharge", "fill"]
+
+
+def test_schema_knows_the_vessel_and_solve_keys(validator):
+    data = as_json_data(STARTERS["vessel"])
+    assert validator.is_valid(data)
+    data["legs"][0]["orifise"] = data["legs"][0].pop("orifice")       # a misspelt vessel-leg key
+    assert not validator.is_valid(data)
+    data = as_json_data(STARTERS["vessel"])
+    del data["vessel"]                                              # a vessel job needs its vessel
+    assert not validator.is_valid(data)
+    data = as_json_data(ideal_job())
+    data["solve"] = {"vary": "start.volume", "between": ["1 L", "5 L"],
+                     "so_that": {"quantity": "volume_change", "at": "Compression", "equals": "-0.5 L"}}
+    assert validator.is_valid(data)
+    data["solve"]["so_that"]["equal"] = data["solve"]["so_that"].pop("equals")
+    assert not validator.is_valid(data)
 
 
 def test_results_show_as_tables_in_a_notebook():
