@@ -97,9 +97,9 @@ def compute_vessel(job: Job) -> Results:
 def _cold(gas: Gas, res: LegResult) -> list[Finding]:
     out = []
     T_min = res.quantities["T_min"].value
-    if T_min < COLD_GAS_K:
+    if T_min < COLD_GAS_K and T_min < res.start.T:      # colder than the leg began (else warned before)
         out.append(Finding("vessel.cold_gas", {"leg": res.name, "T": T_min, "T_limit": COLD_GAS_K}))
     Tw = res.quantities.get("T_wall_min")
-    if Tw is not None and Tw.value < COLD_GAS_K:
+    if Tw is not None and Tw.value < COLD_GAS_K and Tw.value < res.series["T_wall"][0]:
         out.append(Finding("vessel.cold_wall", {"leg": res.name, "T": Tw.value, "T_limit": COLD_GAS_K}))
     return out

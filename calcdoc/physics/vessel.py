@@ -300,13 +300,13 @@ def _result(gas, name, i, s1, s2, V, leg, wall, model, t_end, m2, Q, T_ext, Tw_e
     upstream = s1 if leg.process == "discharge" else model.supply
     if leg.A and upstream is not None:
         Pb = leg.P_back if leg.process == "discharge" else s1.P
-        calcs.append(Calc(f"ṁ_{i}", abs(m_dot1), "kg/s", "{Cd}·{A}·G({P0}, {T0}, {Pb})", method,
+        calcs.append(Calc(f"m\u0307_{i}", abs(m_dot1), "kg/s", "{Cd}·{A}·G({P0}, {T0}, {Pb})", method,
                           {"Cd": Term("C_d", leg.Cd, ""), "A": Term("A", leg.A, "m**2"),
                            "P0": Term("P_0", upstream.P, "Pa"), "T0": Term("T_0", upstream.T, "K"),
                            "Pb": Term("P_b", Pb, "Pa")},
                           note="vessel.choked" if choked1 else "vessel.subsonic"))
     elif not leg.A:
-        calcs.append(Calc("ṁ_in", leg.m_dot, "kg/s", "", "input"))
+        calcs.append(Calc("m\u0307_in", leg.m_dot, "kg/s", "", "input"))
     calcs.append(Calc(f"m_{i}", m1, "kg", "{V} / {v}", "state.mass",
                       {"V": Term("V", V, "m**3"), "v": Term(f"v_{i}", s1.v, "m**3/kg")}))
     bal = "vessel.balance"

@@ -72,7 +72,8 @@ def summary(results, written) -> None:
             print(f"  leg {leg.i}→{leg.i + 1} {leg.name} ({leg.process})")
     solve = results.extra.get("solve")
     if solve:
-        print(f"  solved: {solve['vary']} = {solve['entered']} ({solve['quantity']} = "
+        value = show(solve["value"]["value"], solve["value"]["unit"], 7) if solve["value"]["unit"] else solve["entered"]
+        print(f"  solved: {solve['vary']} = {value} ({solve['quantity']} = "
               f"{show(solve['achieved']['value'], solve['achieved']['unit']) if solve['achieved']['unit'] else solve['achieved']['value']}"
               f", {solve['iterations']} iterations)")
     for c in results.checks:
