@@ -302,7 +302,7 @@ class _Validator(Reader):
 
     def leg(self, node: Node, system: str | None) -> LegSpec | None:
         if system == "vessel":
-            return read_vessel_leg(self, node, None, self.vessel_node)
+            return read_vessel_leg(self, node, self.vessel_node)
         flow = system == "flow"
         allowed = _FLOW_LEG_KEYS if flow else _CLOSED_LEG_KEYS
         m = self.mapping(node, allowed, required=("name", "process", "end"), what="a leg")

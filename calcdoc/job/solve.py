@@ -92,7 +92,7 @@ def read_solve(r: Reader, tree: Node, system: str, places: Places, inputs: list[
 
 
 def _could_mean(text: str, inputs: list[Input]) -> str:
-    paths = [i.path for i in inputs if i.kind not in ("",) or i.unit == ""]
+    paths = [i.path for i in inputs]
     close = difflib.get_close_matches(text, paths, n=4, cutoff=0.4)
     shown = close or paths[:12]
     return "name a quantity the job gives; paths that could be meant: " + ", ".join(shown)

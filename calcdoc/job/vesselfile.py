@@ -53,8 +53,9 @@ def read_vessel(r: Reader, node: Node | None) -> VesselSpec | None:
     return VesselSpec(volume, wall)
 
 
-def read_vessel_leg(r: Reader, node: Node, vessel: VesselSpec | None, vessel_node: Node | None) -> LegSpec | None:
-    """One leg of a vessel job: process, orifice, supply, heat and end (pressure or duration)."""
+def read_vessel_leg(r: Reader, node: Node, vessel_node: Node | None) -> LegSpec | None:
+    """One leg of a vessel job: process, orifice, supply, heat and end (pressure or duration); ``vessel_node``
+    is the job's vessel block (a leg with ``heat: wall`` needs its wall)."""
     m = r.mapping(node, VESSEL_LEG_KEYS, required=("name", "process", "end"), what="a vessel leg")
     if not m:
         return None

@@ -37,7 +37,7 @@ RTOL = 1e-9
 #: Absolute tolerance on temperatures [K]; the mass tolerance is 1e-12 of the larger of the start and end mass.
 ATOL_T = 1e-7
 #: Largest number of right-hand-side evaluations of one leg before it is given up.
-MAX_EVALUATIONS = 200_000
+MAX_EVALUATIONS = 20_000
 #: Largest time of a leg that ends at a pressure, in starting emptying (or filling) times m/ṁ.
 MAX_TIME_FACTOR = 1e4
 #: Points of the time series kept for the results (evenly spaced in time, ends included).
@@ -203,7 +203,7 @@ def run_leg(gas: Gas, name: str, i: int, s1: State, V: float, leg: VesselLeg, wa
     Returns a :class:`LegResult` with the quantities duration [s], T_min, T_max [K] (and T_wall_min,
     T_wall_max with a wall), mass_change [kg], Q_to_gas [J], and the time series (t, P, T, m, m_dot).
 
-    Raises PhysicsError: ``vessel.end_reached`` (the end pressure lies on the wrong side of the start),
+    Raises PhysicsError: ``vessel.mixture`` (a real-gas mixture: refused), ``vessel.end_reached`` (the end pressure lies on the wrong side of the start),
     ``vessel.end_unreachable`` (beyond the back or supply pressure), ``vessel.no_flow``,
     ``vessel.too_long`` (the end is not reached within the largest time), ``vessel.budget`` (too many
     evaluations), ``vessel.empty``.
@@ -214,6 +214,10 @@ def run_leg(gas: Gas, name: str, i: int, s1: State, V: float, leg: VesselLeg, wa
     import numpy as np
     from scipy.integrate import solve_ivp
 
+    if getattr(gas, "pure", True) is False:
+        # a mixture's pressure–entropy flash takes ~0.1 s and may not converge near its phase envelope: a leg
+        # needs thousands of them, so it is refused rather than left to run for hours
+        raise PhysicsError("vessel.mixture", gas=gas.name)
     model = _Vessel(gas, V, leg, wall)
     m1 = V / s1.v
     Tw1 = s1.T if T_wall is None else T_wall

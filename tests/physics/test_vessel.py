@@ -189,3 +189,11 @@ def test_the_time_and_evaluation_bounds_stop_a_leg_with_a_code(monkeypatch, boun
         run_leg(AIR, "B", 1, AIR.state_PT(10e5, 293.15), V,
                 VesselLeg("discharge", "adiabatic", A=A, Cd=CD, P_back=1e5, P_end=2e5))
     assert exc.value.code == code
+
+
+def test_a_real_gas_mixture_is_refused_rather_than_left_to_run_for_hours():
+    gas = RealGas(None, (("Methane", 0.9), ("Ethane", 0.1)))
+    with pytest.raises(PhysicsError) as exc:
+        run_leg(gas, "B", 1, gas.state_PT(50e5, 300.0), 1.0,
+                VesselLeg("discharge", "adiabatic", A=A, Cd=CD, P_back=1e5, P_end=10e5))
+    assert exc.value.code == "vessel.mixture"
