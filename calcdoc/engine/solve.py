@@ -10,13 +10,15 @@ chart is at the solved value. The results keep the original job (its file, byte 
 from __future__ import annotations
 
 import dataclasses
+from collections.abc import Callable
+from typing import Any
 
 from ..errors import JobError, PhysicsError
 from ..job.model import Job
 from ..job.solve import bracket_problem, places_problem, trial_problem, trial_text, unsolved_problem
 from ..job.vary import with_text
 from .checks import evaluate, locations
-from .results import q as qjson
+from .results import Results, q as qjson
 
 __all__ = ["MAX_ITER", "RTOL", "XTOL_REL", "with_solve"]
 
@@ -28,15 +30,16 @@ RTOL = 1e-12
 MAX_ITER = 100
 
 
-def with_solve(job: Job, compute):
+def with_solve(job: Job, compute: Callable[[Job], Results]) -> Results:
     """The results of a job with a ``solve``: computed and checked at the solved value, with
     ``extra['solve']``; ``compute`` computes one job's states and legs (no checks)."""
     from scipy.optimize import brentq
 
     sp = job.solve
-    runs: dict[float, tuple] = {}
+    assert sp is not None, "with_solve is called for a job with a solve"
+    runs: dict[float, tuple[Job, Results, float]] = {}
 
-    def trial(x: float):
+    def trial(x: float) -> tuple[Job, Results, float]:
         if x in runs:
             return runs[x]
         try:
@@ -72,7 +75,7 @@ def with_solve(job: Job, compute):
     checks = evaluate(pj, res)
     inp = next(i for i in pj.inputs if i.path == sp.value_path)
     qu = sp.quantity.unit
-    solve = {
+    solve: dict[str, Any] = {
         "vary": sp.vary, "path": sp.value_path, "value": qjson(inp.si, inp.unit),
         "entered": trial_text(sp, float(x)).strip('"'),
         "quantity": sp.quantity.name, "at": list(sp.at),

@@ -29,6 +29,7 @@ COLD_GAS_K = 244.15
 
 def _leg_input(leg: LegSpec) -> VesselLeg:
     v = leg.vessel
+    assert v is not None, "a vessel job's legs are vessel legs"
     A = math.pi * v.diameter.si ** 2 / 4.0 if v.diameter is not None else 0.0
     return VesselLeg(
         process=leg.process, heat=v.heat, A=A,
@@ -42,6 +43,7 @@ def _leg_input(leg: LegSpec) -> VesselLeg:
 
 
 def _wall(job: Job) -> Wall | None:
+    assert job.vessel is not None
     w = job.vessel.wall
     if w is None:
         return None
@@ -61,6 +63,7 @@ def compute_vessel(job: Job) -> Results:
     """Compute a vessel job's states, legs and warnings (no design checks, no sweep)."""
     gas, gas_calcs = make_gas(job)
     s1 = _start_state(job, gas)
+    assert job.vessel is not None, "a vessel job has its vessel (checked when the job file is read)"
     V = job.vessel.volume.si
     m = V / s1.v
     mass = Calc("m", m, "kg", "{V} / {v1}", "state.mass",
@@ -70,7 +73,7 @@ def compute_vessel(job: Job) -> Results:
     for prop, unit in (("u", "J/kg"), ("h", "J/kg"), ("s", "J/(kg*K)")):
         start_calcs.append(Calc(f"{prop}_1", getattr(s1, prop), unit, f"{prop}(P_1, T_1)", gas.eos_method))
     wall = _wall(job)
-    warnings: list = _phase_warnings(gas, "Start state", [s1], job.units)
+    warnings: list[Finding] = _phase_warnings(gas, Finding("label.start"), [s1])
     legs: list[LegResult] = []
     records = [StateRecord(1, "1", s1)]
     s, T_wall = s1, s1.T
@@ -82,7 +85,7 @@ def compute_vessel(job: Job) -> Results:
             f = Finding(exc.code, {**exc.values, "leg": leg.name}, _where(leg, exc.code))
             raise JobError([problem(job, f)]) from None
         legs.append(res)
-        warnings += _phase_warnings(gas, f"Leg '{leg.name}'", list(res.path), job.units)
+        warnings += _phase_warnings(gas, Finding("label.leg", {"leg": leg.name}), list(res.path))
         warnings += _cold(gas, res)
         if res.series and "T_wall" in res.series:
             T_wall = res.series["T_wall"][-1]
@@ -100,6 +103,6 @@ def _cold(gas: Gas, res: LegResult) -> list[Finding]:
     if T_min < COLD_GAS_K and T_min < res.start.T:      # colder than the leg began (else warned before)
         out.append(Finding("vessel.cold_gas", {"leg": res.name, "T": T_min, "T_limit": COLD_GAS_K}))
     Tw = res.quantities.get("T_wall_min")
-    if Tw is not None and Tw.value < COLD_GAS_K and Tw.value < res.series["T_wall"][0]:
+    if Tw is not None and Tw.value < COLD_GAS_K and res.series and Tw.value < res.series["T_wall"][0]:
         out.append(Finding("vessel.cold_wall", {"leg": res.name, "T": Tw.value, "T_limit": COLD_GAS_K}))
     return out

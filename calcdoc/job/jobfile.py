@@ -19,8 +19,8 @@ from .flowopts import FLOW_OPTION_KEYS, chain_problems, read_options
 from .limits import Places, read_limits
 from .model import GasSpec, Input, Job, LegSpec, Site, StartSpec, TitleBlock, keys_of
 from .reader import Reader, describe as _describe
-from .source import MAX_BYTES as _MAX_BYTES, Node, decode, leaves, load as _load_yaml
 from .solve import read_solve
+from .source import MAX_BYTES as _MAX_BYTES, Node, decode, leaves, load as _load_yaml
 from .sweep import read_sweep
 from .vesselfile import read_vessel, read_vessel_leg
 

@@ -131,6 +131,7 @@ MESSAGES: dict[str, tuple[str, str]] = {
                       "stopped", "end the leg sooner, or check the orifice size and the end target"),
     "vessel.integration": ("leg '{leg}': the time integration failed ({reason})",
                            "check the orifice size and the end target"),
+    "vessel.no_wall": ("leg '{leg}': heat: wall needs the vessel's wall", "add vessel.wall"),
     "vessel.mixture": ("leg '{leg}': a vessel of the real-gas mixture {gas} cannot be computed over time (each "
                        "step needs many mixture flashes, which are slow and may not converge)",
                        "use model: ideal for the mixture (with k and molar_mass), or a pure fluid"),

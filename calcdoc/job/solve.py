@@ -23,7 +23,7 @@ from .. import units
 from ..errors import Problem
 from .limits import Places, names_of
 from .model import Input, Job, SolveSpec
-from .quantities import quantity_named, quantity_problem
+from .quantities import Quantity, quantity_named, quantity_problem
 from .reader import Reader, describe
 from .source import Node
 from .sweep import _block_span, resolve_path
@@ -49,31 +49,37 @@ def read_solve(r: Reader, tree: Node, system: str, places: Places, inputs: list[
         r.add(node, "this job has both a sweep and a solve",
               "a solved job is computed at the one value that meets its target: solve in this job file, then "
               "sweep a copy that gives the solved value in place of the solve block")
-    target, inp = None, None
+    target: Node | None = None
+    inp: Input | None = None
     if "vary" in m:
         text = r.text(m["vary"], required=True, what="input path")
         if text:
             target, why = resolve_path(tree, text, inputs)
-            if why:
+            if why or target is None:
                 r.add(m["vary"], f"cannot vary '{text}': {why}", _could_mean(text, inputs))
             else:
-                inp = next(i for i in inputs if i.path == target.path)
-    bracket, entered, unit = None, None, ""
+                path = target.path
+                inp = next(i for i in inputs if i.path == path)
+    bracket: tuple[float, float] | None = None
+    entered: tuple[str, str] | None = None
+    unit = ""
     if "between" in m:
         b = m["between"]
         if b.kind != "seq" or len(b.value) != 2 or any(it.kind != "scalar" for it in b.value):
             r.add(b, f"expected a list of two values, found {describe(b)}", "write between: [10 L, 500 L]")
         else:
             bracket, entered, unit = _bracket(r, b, inp)
-    q, at, equals = None, (), None
+    q: Quantity | None = None
+    at: tuple[str, ...] = ()
+    equals: Input | None = None
     if "so_that" in m:
         sm = r.mapping(m["so_that"], SO_THAT_KEYS, required=("quantity", "equals"), what="the target of the solve")
         qname = r.text(sm.get("quantity"), required=True, what="quantity name") if "quantity" in sm else ""
         q = quantity_named(qname) if qname else None
         if qname:
-            why = quantity_problem(q, qname, system)
-            if why:
-                r.add(sm["quantity"], *why)
+            refused = quantity_problem(q, qname, system)
+            if refused:
+                r.add(sm["quantity"], *refused)
                 q = None
         names = names_of(sm.get("at"), r.add)
         if len(names) > 1:
@@ -83,7 +89,8 @@ def read_solve(r: Reader, tree: Node, system: str, places: Places, inputs: list[
             if "equals" in sm:
                 equals = r.quantity(sm["equals"], q.kind, positive=False, record=False)
         at = tuple(n for n, _ in names)
-    if len(r.problems) > before or target is None or bracket is None or q is None or equals is None:
+    if len(r.problems) > before or target is None or bracket is None or entered is None or q is None \
+            or equals is None:
         return None
     where = {"vary": m["vary"].where, "between": m["between"].where, "so_that": m["so_that"].where,
              "at": m["so_that"].value["at"].where if "at" in m["so_that"].value else m["so_that"].where}
@@ -98,7 +105,7 @@ def _could_mean(text: str, inputs: list[Input]) -> str:
     return "name a quantity the job gives; paths that could be meant: " + ", ".join(shown)
 
 
-def _bracket(r: Reader, b: Node, inp: Input | None):
+def _bracket(r: Reader, b: Node, inp: Input | None) -> tuple[tuple[float, float] | None, tuple[str, str] | None, str]:
     """The two ends of the bracket as numbers in one unit, each checked as a value of the varied input."""
     a_node, b_node = b.value
     ma, mb = (_NUM.match(str(n.value)) if not isinstance(n.value, bool) else None for n in (a_node, b_node))
@@ -128,9 +135,14 @@ def trial_text(spec: SolveSpec, x: float) -> str:
     return json.dumps(f"{t} {spec.unit}") if spec.unit else t
 
 
+def _spec(job: Job) -> SolveSpec:
+    assert job.solve is not None, "the job has a solve"
+    return job.solve
+
+
 def _show(job: Job, value: float) -> str:
     """A value of the target quantity in the job's units, and in the unit the target was written in."""
-    sp = job.solve
+    sp = _spec(job)
     q = sp.quantity
     if not q.unit:
         return f"{value:.7g}"
@@ -146,14 +158,14 @@ def _show(job: Job, value: float) -> str:
 
 
 def _at(job: Job, key: str, found: str, valid: str) -> Problem:
-    sp = job.solve
+    sp = _spec(job)
     line, col = sp.where[key]
     return Problem(job.name, line, col, f"{sp.path}.{key}", found, valid)
 
 
 def bracket_problem(job: Job, fa: float, fb: float) -> Problem:
     """The ends of the bracket do not straddle the target: the values achieved at both ends."""
-    sp = job.solve
+    sp = _spec(job)
     side = "above" if fa > sp.equals.si else "below"
     return _at(job, "between", f"the bracket does not straddle the target: {sp.quantity.name} is {_show(job, fa)} at "
                f"{sp.vary} = {sp.entered[0]} and {_show(job, fb)} at {sp.entered[1]}, both {side} the target "
@@ -163,7 +175,7 @@ def bracket_problem(job: Job, fa: float, fb: float) -> Problem:
 
 def trial_problem(job: Job, x: float, why: str) -> Problem:
     """The job cannot be computed at a point inside the bracket."""
-    sp = job.solve
+    sp = _spec(job)
     at = f"{x:.6g}" + (f" {sp.unit}" if sp.unit else "")
     return _at(job, "between", f"the job cannot be computed at {sp.vary} = {at}, inside the bracket: {why}",
                "narrow the bracket to values this job can be computed at")
@@ -171,7 +183,7 @@ def trial_problem(job: Job, x: float, why: str) -> Problem:
 
 def places_problem(job: Job, places: list[str]) -> Problem:
     """The target quantity exists at more than one place, and the solve names none."""
-    sp = job.solve
+    sp = _spec(job)
     return _at(job, "at", f"{sp.quantity.name} exists at {len(places)} places ({'; '.join(places)})",
                "name the one place the target applies to with at:")
 

@@ -46,8 +46,9 @@ def read_vessel(r: Reader, node: Node | None) -> VesselSpec | None:
     if "wall" in m:
         wm = r.mapping(m["wall"], WALL_KEYS, required=WALL_KEYS, what="the vessel wall")
         vals = {k: r.quantity(wm.get(k), kind) for k, kind in _WALL_KINDS.items()}
-        if all(vals.values()):
-            wall = WallSpec(**vals)
+        got = {k: v for k, v in vals.items() if v is not None}
+        if len(got) == len(vals):
+            wall = WallSpec(**got)
     if volume is None:
         return None
     return VesselSpec(volume, wall)
@@ -76,8 +77,9 @@ def read_vessel_leg(r: Reader, node: Node, vessel_node: Node | None) -> LegSpec 
             cd = r.number(om["discharge_coefficient"], 0.0, 1.0, lo_open=True, what="a discharge coefficient")
             if cd is not None:
                 c = om["discharge_coefficient"]
-                orifice["discharge_coefficient"] = Input(cd, "", str(c.value), c.path, *c.where)
-                r.inputs.append(orifice["discharge_coefficient"])
+                cd_input = Input(cd, "", str(c.value), c.path, *c.where)
+                orifice["discharge_coefficient"] = cd_input
+                r.inputs.append(cd_input)
         orifice["back_pressure"] = r.quantity(om.get("back_pressure"), "pressure")
         if process == "fill" and "back_pressure" in om:
             r.add(om["back_pressure"], "a fill has no back pressure: the vessel is downstream of the orifice",
@@ -111,7 +113,7 @@ def read_vessel_leg(r: Reader, node: Node, vessel_node: Node | None) -> LegSpec 
     if process == "discharge" and "orifice" not in m:
         r.add(node, "missing required key 'orifice'", "a discharge needs its orifice: {diameter: 10 mm, "
               "discharge_coefficient: 0.85, back_pressure: 101.325 kPa}", path=f"{node.path}.orifice")
-    end: dict[str, Input] = {}
+    end: dict[str, Input | None] = {}
     if "end" in m:
         em = r.mapping(m["end"], VESSEL_TARGETS, what="the end of a vessel leg")
         if "pressure" in em:
@@ -126,4 +128,5 @@ def read_vessel_leg(r: Reader, node: Node, vessel_node: Node | None) -> LegSpec 
     spec = VesselLegSpec(heat, orifice.get("diameter"), orifice.get("discharge_coefficient"),
                          orifice.get("back_pressure"), supply.get("pressure"), supply.get("temperature"),
                          supply.get("mass_flow"))
-    return LegSpec(name, process, node.path, *node.where, end=end, note=r.text(m.get("note")), vessel=spec)
+    ends = {k: v for k, v in end.items() if v is not None}
+    return LegSpec(name, process, node.path, *node.where, end=ends, note=r.text(m.get("note")), vessel=spec)

@@ -22,7 +22,9 @@ Runge–Kutta pair.
 from __future__ import annotations
 
 import math
+from collections.abc import Sequence
 from dataclasses import dataclass
+from typing import Any
 
 from ..errors import Finding, PhysicsError
 from .calc import Calc, Term
@@ -79,7 +81,7 @@ def critical_ratio(k: float) -> float:
     References: Çengel, Boles & Kanoğlu (2019), ch. 17, critical ratios of isentropic flow.
     Example: k = 1.4 gives 0.5283.
     """
-    return (2.0 / (k + 1.0)) ** (k / (k - 1.0))
+    return float((2.0 / (k + 1.0)) ** (k / (k - 1.0)))
 
 
 def ideal_mass_flux(P0: float, T0: float, Pb: float, k: float, R: float) -> tuple[float, bool]:
@@ -138,14 +140,16 @@ class _Vessel:
     """The right-hand side of the vessel's balance of mass and energy: y = (m, T, T_wall, Q)."""
 
     def __init__(self, gas: Gas, V: float, leg: VesselLeg, wall: Wall | None):
-        self.gas, self.V, self.leg, self.wall = gas, V, leg, wall
-        self.ideal = isinstance(gas, IdealGas)
+        self.gas, self.V, self.leg = gas, V, leg
+        self.wall = wall if wall is not None else Wall(1.0, 1.0, 0.0, 0.0)   # no heat unless a wall is given
+        self.ideal_gas = gas if isinstance(gas, IdealGas) else None
+        self.ideal = self.ideal_gas is not None
         self.evaluations = 0
         self.supply = gas.state_PT(leg.P_supply, leg.T_supply) if leg.process == "fill" and leg.P_supply else None
 
     def flux(self, s0: State, Pb: float) -> tuple[float, bool]:
-        if self.ideal:
-            return ideal_mass_flux(s0.P, s0.T, Pb, self.gas.k, self.gas.R)
+        if self.ideal_gas is not None:
+            return ideal_mass_flux(s0.P, s0.T, Pb, self.ideal_gas.k, self.ideal_gas.R)
         return real_mass_flux(self.gas, s0, Pb)
 
     def flows(self, st: State) -> tuple[float, float, float, bool]:
@@ -161,17 +165,17 @@ class _Vessel:
 
     def derivatives(self, st: State) -> tuple[float, float]:
         """c_v = (∂u/∂T)_v and (∂u/∂v)_T: exact for the ideal gas, central differences on the gas model otherwise."""
-        if self.ideal:
-            return self.gas.cv, 0.0
+        if self.ideal_gas is not None:
+            return self.ideal_gas.cv, 0.0
         dT, dv = 1e-4 * st.T, 1e-6 * st.v
         cv = (self.gas.state_Tv(st.T + dT, st.v).u - self.gas.state_Tv(st.T - dT, st.v).u) / (2 * dT)
         dudv = (self.gas.state_Tv(st.T, st.v + dv).u - self.gas.state_Tv(st.T, st.v - dv).u) / (2 * dv)
         return cv, dudv
 
-    def state(self, y) -> State:
+    def state(self, y: Sequence[float]) -> State:
         return self.gas.state_Tv(float(y[1]), self.V / float(y[0]))
 
-    def rhs(self, t, y):
+    def rhs(self, t: float, y: Sequence[float]) -> list[float]:
         self.evaluations += 1
         if self.evaluations > MAX_EVALUATIONS:
             raise _Budget()
@@ -218,6 +222,8 @@ def run_leg(gas: Gas, name: str, i: int, s1: State, V: float, leg: VesselLeg, wa
         # a mixture's pressure–entropy flash takes ~0.1 s and may not converge near its phase envelope: a leg
         # needs thousands of them, so it is refused rather than left to run for hours
         raise PhysicsError("vessel.mixture", gas=gas.name)
+    if leg.heat == "wall" and wall is None:
+        raise PhysicsError("vessel.no_wall")
     model = _Vessel(gas, V, leg, wall)
     m1 = V / s1.v
     Tw1 = s1.T if T_wall is None else T_wall
@@ -241,13 +247,14 @@ def run_leg(gas: Gas, name: str, i: int, s1: State, V: float, leg: VesselLeg, wa
     m_scale = max(m1, (leg.P_end or s1.P) * V / (s1.P * s1.v))
     Q_scale = m_scale * 1e3 * s1.T
 
-    events = None
-    if leg.P_end is not None:
-        def reach(t, y):
-            return model.state(y).P - leg.P_end
-        reach.terminal = True
-        reach.direction = sign
+    events: Any = None
+    P_end = leg.P_end
+    if P_end is not None:
+        def reach(t: float, y: Sequence[float]) -> float:
+            return model.state(y).P - P_end
         events = reach
+        events.terminal = True
+        events.direction = sign
     try:
         sol = solve_ivp(model.rhs, (0.0, t_max), [m1, s1.T, Tw1, 0.0], method="DOP853", rtol=RTOL,
                         atol=[1e-12 * m_scale, ATOL_T, ATOL_T, 1e-12 * Q_scale], events=events,
@@ -273,12 +280,9 @@ def run_leg(gas: Gas, name: str, i: int, s1: State, V: float, leg: VesselLeg, wa
         states.append(st)
         flows.append((a - b, ch))
     s2 = states[-1]
-    # extremes over every accepted step, not only the series points
+    # extremes over every accepted step (a terminal event ends the steps at the end time), not only the series
     T_all = [float(x) for x in sol.y[1]] + [float(y_end[1])]
     Tw_all = [float(x) for x in sol.y[2]] + [float(y_end[2])]
-    if leg.P_end is not None:
-        T_all = [T for T, t in zip(sol.y[1], sol.t) if t <= t_end] + [float(y_end[1])]
-        Tw_all = [T for T, t in zip(sol.y[2], sol.t) if t <= t_end] + [float(y_end[2])]
     series = {"t": ts, "P": [s.P for s in states], "T": [s.T for s in states], "m": [float(y[0]) for y in ys],
               "m_dot": [f for f, _ in flows]}
     if leg.heat == "wall":
@@ -288,8 +292,10 @@ def run_leg(gas: Gas, name: str, i: int, s1: State, V: float, leg: VesselLeg, wa
                    sol.nfev)
 
 
-def _result(gas, name, i, s1, s2, V, leg, wall, model, t_end, m2, Q, T_ext, Tw_ext, m_dot1, choked1, states,
-            series, nfev) -> LegResult:
+def _result(gas: Gas, name: str, i: int, s1: State, s2: State, V: float, leg: VesselLeg, wall: Wall | None,
+            model: _Vessel, t_end: float, m2: float, Q: float, T_ext: tuple[float, float],
+            Tw_ext: tuple[float, float], m_dot1: float, choked1: bool, states: list[State],
+            series: dict[str, list[float]], nfev: int) -> LegResult:
     j = i + 1
     m1 = V / s1.v
     calcs: list[Calc] = []
@@ -297,8 +303,8 @@ def _result(gas, name, i, s1, s2, V, leg, wall, model, t_end, m2, Q, T_ext, Tw_e
     if leg.A:
         d = math.sqrt(4.0 * leg.A / math.pi)
         calcs.append(Calc("A", leg.A, "m**2", "π·{d}²/4", "orifice.area", {"d": Term("d", d, "m")}))
-    if model.ideal and leg.A:
-        k = model.gas.k
+    if model.ideal_gas is not None and leg.A:
+        k = model.ideal_gas.k
         calcs.append(Calc("r*", critical_ratio(k), "", "(2/({k} + 1))^({k}/({k} − 1))", "nozzle.critical",
                           {"k": Term("k", k, "")}))
     upstream = s1 if leg.process == "discharge" else model.supply

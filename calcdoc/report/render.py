@@ -120,7 +120,7 @@ def context(results) -> dict:
         charts = diagrams(results, system)
     if results.system == "vessel" and results.legs:
         charts["time"] = time_chart(results, system)
-        charts["wall"] = any("T_wall" in (leg.series or {}) for leg in results.legs)
+        charts["wall"] = "yes" if any("T_wall" in (leg.series or {}) for leg in results.legs) else ""
     if results.extra.get("sweep"):
         charts["sweep"] = sweep_chart(results.extra["sweep"], system)
     return {
