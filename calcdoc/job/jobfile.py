@@ -14,9 +14,12 @@ from dataclasses import fields
 from pathlib import Path
 
 from .. import units
-from ..errors import JobError, Problem
+from ..errors import Finding, JobError, Problem
+from ..physics.fluids import closest_fluids, is_mixture_string, known_fluid
+from .files import read_regular
 from .flowopts import FLOW_OPTION_KEYS, chain_problems, read_options
 from .limits import Places, read_limits
+from .messages import found_text, valid_text
 from .model import GasSpec, Input, Job, LegSpec, Site, StartSpec, TitleBlock, keys_of
 from .reader import Reader, describe as _describe
 from .solve import read_solve
@@ -27,6 +30,9 @@ from .vesselfile import read_vessel, read_vessel_leg
 __all__ = ["CLOSED_PROCESSES", "FLOW_PROCESSES", "load", "loads"]
 
 SCHEMA_VERSION = 1
+#: Longest calc number or revision, name of a person, and one-line text (title, project, client) [characters]:
+#: they stand in the title block and page headers, where a longer text would not fit.
+MAX_ID, MAX_NAME, MAX_LINE = 60, 120, 300
 CLOSED_PROCESSES = ("polytropic", "isentropic", "isothermal", "isobaric", "isochoric")
 FLOW_PROCESSES = ("compressor", "expander", "cooler", "heater", "throttle", "polytropic", "isentropic", "isothermal")
 CLOSED_TARGETS = ("pressure", "temperature", "volume", "pressure_ratio", "volume_ratio")
@@ -37,17 +43,7 @@ TARGET_KIND = {"pressure": "pressure", "temperature": "temperature", "volume": "
 
 def load(path: str | Path) -> Job:
     """Read and validate a job file."""
-    p = Path(path)
-    try:
-        with p.open("rb") as fh:
-            data = fh.read(_MAX_BYTES + 1)   # never read more than a job file may hold
-    except FileNotFoundError:
-        raise JobError([Problem(str(path), 0, 0, "", "no such file", "give the path of a job file (.yaml)")]) from None
-    except IsADirectoryError:
-        raise JobError([Problem(str(path), 0, 0, "", "this is a folder, not a job file",
-                                "give the path of a job file (.yaml)")]) from None
-    except OSError as exc:
-        raise JobError([Problem(str(path), 0, 0, "", f"cannot read the file ({exc.strerror})", "")]) from None
+    data = read_regular(path, _MAX_BYTES, "a job file (.yaml)")
     return loads(data, str(path))
 
 
@@ -143,12 +139,19 @@ class _Validator(Reader):
             return None
         m = self.mapping(node, _CALC_KEYS, required=("number", "title", "revision", "date"), what="the title block")
         history = []
+        seen_revs: dict[str, int] = {}
         for item in self.seq(m.get("history")):
             h = self.mapping(item, ("revision", "date", "description"), required=("revision", "date", "description"))
             hd = h.get("date")
             if hd is not None and not isinstance(hd.value, _dt.date) and not (isinstance(hd.value, str) and _iso_date(hd.value)):
                 self.add(hd, f"expected a date, found {_describe(hd)}", "write the date as YYYY-MM-DD (ISO 8601)")
-            history.append((self.text(h.get("revision")), self.text(h.get("date")), self.text(h.get("description"))))
+            rev = self.text(h.get("revision"), required="revision" in h, what="revision", most=MAX_ID)
+            if rev and rev in seen_revs:
+                self.add(h["revision"], f"revision '{rev}' is listed twice in the history (first at line "
+                         f"{seen_revs[rev]})", "list each revision once")
+            elif rev:
+                seen_revs[rev] = h["revision"].where[0]
+            history.append((rev, self.text(h.get("date")), self.text(h.get("description"))))
         drawings = tuple(self.text(d) for d in self.seq(m.get("drawings")))
         if "date" in m:
             d = m["date"]
@@ -157,11 +160,16 @@ class _Validator(Reader):
                          "for example 2026-11-28")
         if not m or any(k not in m for k in ("number", "title", "revision", "date")):
             return None
-        return TitleBlock(number=self.text(m["number"]), title=self.text(m["title"]),
-                          project=self.text(m.get("project")), revision=self.text(m["revision"]),
-                          date=self.text(m["date"]), client=self.text(m.get("client")),
-                          purpose=self.text(m.get("purpose")), prepared_by=self.text(m.get("prepared_by")),
-                          checked_by=self.text(m.get("checked_by")), approved_by=self.text(m.get("approved_by")),
+        # the calc number and revision name the output files and identify the package: never empty
+        number = self.text(m["number"], required=True, what="calc number", most=MAX_ID)
+        revision = self.text(m["revision"], required=True, what="revision", most=MAX_ID)
+        title = self.text(m["title"], required=True, what="title", most=MAX_LINE)
+        people = {k: self.text(m.get(k), what=k.replace("_", " "), most=MAX_NAME)
+                  for k in ("prepared_by", "checked_by", "approved_by")}
+        return TitleBlock(number=number, title=title,
+                          project=self.text(m.get("project"), most=MAX_LINE), revision=revision,
+                          date=self.text(m["date"]), client=self.text(m.get("client"), most=MAX_LINE),
+                          purpose=self.text(m.get("purpose")), **people,
                           drawings=drawings, history=tuple(history))
 
     def site(self, node: Node | None) -> Site:
@@ -222,6 +230,13 @@ class _Validator(Reader):
                     self.add(mm, f"the mole fractions sum to {total:.6g}", "mole fractions must sum to 1 (within 1e-4)")
                 if len(mixture) == len(mm.value) and abs(total - 1.0) <= 1e-4:
                     mixture = [(c, x / total) for c, x in mixture]
+        names = ([(m["fluid"], fluid, "fluid.unknown")] if fluid else []) + \
+            [(mm.value[c], c, "fluid.unknown_component") for c, _ in mixture]
+        for at, nm, code in names:
+            if not known_fluid(nm):
+                f = Finding("fluid.mixture_string" if is_mixture_string(nm) else code,
+                            {"name": nm, "close": tuple(closest_fluids(nm))})
+                self.add(at, found_text(f, self.system), valid_text(f, self.system))
         if fluid and "mixture" in m:
             self.add(node, "both fluid and mixture are given", "give a fluid (one component) or a mixture")
         if not fluid and "mixture" not in m and model == "real":

@@ -165,6 +165,13 @@ def _unknown_fluid(v: dict[str, Any], system: str) -> tuple[str, str]:
     return f"'{v['name']}' is not a fluid the equation-of-state library (CoolProp) knows", hint + _COMMON_FLUIDS
 
 
+@_spoken("fluid.mixture_string")
+def _mixture_string(v: dict[str, Any], system: str) -> tuple[str, str]:
+    return (f"'{v['name']}' is a mixture or library string, not a fluid name",
+            "name one fluid (fluid: Nitrogen), or give the components with their mole fractions: "
+            "mixture: {Nitrogen: 0.78, Oxygen: 0.21, Argon: 0.01}")
+
+
 @_spoken("fluid.unknown_component")
 def _unknown_component(v: dict[str, Any], system: str) -> tuple[str, str]:
     hint = f"did you mean {' or '.join(repr(c) for c in v['close'])}? " if v["close"] else ""

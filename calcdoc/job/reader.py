@@ -97,8 +97,10 @@ class Reader:
             self.where[item.path] = item.where
         return list(node.value)
 
-    def text(self, node: Node | None, default: str = "", required: bool = False, what: str = "text") -> str:
-        """A plain text (dates as ISO text); ``required`` refuses an empty or blank text."""
+    def text(self, node: Node | None, default: str = "", required: bool = False, what: str = "text",
+             most: int = MAX_TEXT) -> str:
+        """A plain text (dates as ISO text) of at most ``most`` characters; ``required`` refuses an empty or
+        blank text."""
         if node is None:
             return default
         if node.kind != "scalar" or node.value is None or isinstance(node.value, bool):
@@ -107,8 +109,8 @@ class Reader:
         if isinstance(node.value, (_dt.date, _dt.datetime)):
             return node.value.isoformat()
         text = str(node.value)
-        if len(text) > MAX_TEXT:
-            self.add(node, f"the text is {len(text):,} characters long", f"write at most {MAX_TEXT:,} characters here")
+        if len(text) > most:
+            self.add(node, f"the text is {len(text):,} characters long", f"write at most {most:,} characters here")
             return default
         if required and not text.strip():
             self.add(node, f"the {what} is empty", f"write the {what}")

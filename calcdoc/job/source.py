@@ -15,6 +15,8 @@ from ..errors import JobError, Problem
 MAX_BYTES = 1_000_000
 MAX_NODES = 100_000
 MAX_DEPTH = 40
+MAX_ITEMS = 1_000        # entries of one list or mapping
+MAX_SCALAR = 20_000      # characters of one value or key (the readers cap texts lower still)
 
 
 @dataclass
@@ -167,6 +169,17 @@ class _Builder:
     def fail(self, node: Any, path: str, found: str, valid: str) -> NoReturn:
         raise JobError([Problem(self.name, node.start_mark.line + 1, node.start_mark.column + 1, path, found, valid)])
 
+    def check_text(self, node: Any, path: str, text: str) -> None:
+        """Refuse a value too long to be a job's text, or one holding a lone surrogate (not Unicode text)."""
+        if len(text) > MAX_SCALAR:
+            self.fail(node, path, f"a value of {len(text):,} characters", f"a value is at most {MAX_SCALAR:,} characters")
+        try:
+            text.encode("utf-8")
+        except UnicodeEncodeError as exc:
+            self.fail(node, path, f"the text holds the lone surrogate code point U+{ord(text[exc.start]):04X} "
+                      "(written as an escape), which is not a character",
+                      "write the character itself, or a pair of escapes that make one character")
+
     def build(self, node: Any, path: str, depth: int) -> Node:
         import yaml
 
@@ -186,15 +199,28 @@ class _Builder:
             self.fail(node, path, "an alias refers to the value that contains it (a recursive anchor)",
                       "remove the recursive alias")
         if isinstance(node, yaml.ScalarNode):
+            self.check_text(node, path, node.value)
             try:
                 value = self.constructor.construct_object(node, deep=True)
             except yaml.constructor.ConstructorError as exc:
                 self.fail(node, path, f"cannot read the value: {exc.problem}", "write a plain number, text or date")
-            except ValueError:
-                self.fail(node, path, f"cannot read the value '{node.value}'", "write a plain number, text or date")
+            except (ValueError, KeyError, TypeError, AttributeError, OverflowError):
+                # a value the explicit tag does not fit ('!!bool x', '!!timestamp x', '!!int 1.5')
+                tag = node.tag.replace("tag:yaml.org,2002:", "!!")
+                self.fail(node, path, f"cannot read '{_clip(node.value)}' as {tag}",
+                          "remove the tag, or write a value of that kind; a plain number, text or date needs no tag")
+            if isinstance(value, int) and not isinstance(value, bool):
+                try:
+                    float(value)
+                except OverflowError:
+                    self.fail(node, path, f"the number {_clip(node.value)} is beyond the range of floating-point "
+                              "numbers (about 1.8e308)", "write a number of a sensible size")
             if isinstance(value, float) and value != value:
                 value = node.value  # '.nan' stays text so that validation names it
             return Node(value, line, col, path, tag=node.tag, span=(node.start_mark.index, node.end_mark.index))
+        if len(node.value) > MAX_ITEMS:
+            self.fail(node, path, f"a {'list' if isinstance(node, yaml.SequenceNode) else 'mapping'} of "
+                      f"{len(node.value):,} entries", f"a list or mapping holds at most {MAX_ITEMS:,} entries")
         self.active.add(id(node))
         try:
             if isinstance(node, yaml.SequenceNode):
@@ -208,6 +234,7 @@ class _Builder:
                 if key_node.tag == "tag:yaml.org,2002:merge":
                     self.fail(key_node, path, "merge keys ('<<') are not supported",
                               "write the keys out in full")
+                self.check_text(key_node, path, key_node.value)
                 key = str(key_node.value)
                 sub = f"{path}.{key}" if path else key
                 if key in out:
@@ -221,6 +248,10 @@ class _Builder:
                         flow=bool(node.flow_style))
         finally:
             self.active.discard(id(node))
+
+
+def _clip(text: str, most: int = 40) -> str:
+    return text if len(text) <= most else text[:most] + "…"
 
 
 def _scalar(node: Node) -> str:

@@ -2,14 +2,55 @@
 from __future__ import annotations
 
 import difflib
+import json
+import os
 from functools import lru_cache
+from importlib import metadata
+from pathlib import Path
 
-__all__ = ["closest_fluids", "fluid_names", "known_fluid"]
+__all__ = ["closest_fluids", "fluid_names", "is_mixture_string", "known_fluid"]
 
 
 @lru_cache(maxsize=1)
 def fluid_names() -> dict[str, str]:
-    """Every name CoolProp accepts (fluid names and their aliases) → the fluid's own name."""
+    """Every name CoolProp accepts (fluid names and their aliases) → the fluid's own name.
+
+    Importing CoolProp takes a second or more, so the list is kept in the user's cache folder
+    (``$XDG_CACHE_HOME/calcdoc`` or ``~/.cache/calcdoc``) under the installed CoolProp's version: a job
+    can be checked without loading the library. A missing, unreadable or foreign cache is rebuilt from
+    CoolProp itself; a cache folder that cannot be written is not an error.
+    """
+    cache = _cache_file()
+    if cache is not None:
+        try:
+            data = json.loads(cache.read_text(encoding="utf-8"))
+            if isinstance(data, dict) and data and all(isinstance(k, str) and isinstance(v, str) for k, v in data.items()):
+                return data
+        except (OSError, ValueError):
+            pass
+    out = _names_from_library()
+    if cache is not None:
+        try:
+            cache.parent.mkdir(parents=True, exist_ok=True)
+            tmp = cache.with_name(f".{cache.name}.{os.getpid()}.part")
+            tmp.write_text(json.dumps(out, sort_keys=True), encoding="utf-8")
+            os.replace(tmp, cache)
+        except OSError:
+            pass
+    return out
+
+
+def _cache_file() -> Path | None:
+    try:
+        version = metadata.version("CoolProp")
+    except metadata.PackageNotFoundError:
+        return None
+    root = os.environ.get("XDG_CACHE_HOME") or os.path.join(os.path.expanduser("~"), ".cache")
+    safe = "".join(ch if ch.isalnum() or ch in ".-_" else "_" for ch in version)
+    return Path(root) / "calcdoc" / f"coolprop-{safe}-fluids.json"
+
+
+def _names_from_library() -> dict[str, str]:
     import CoolProp.CoolProp as CP
 
     names = CP.get_global_param_string("FluidsList").split(",")
@@ -24,18 +65,18 @@ def fluid_names() -> dict[str, str]:
     return out
 
 
+def is_mixture_string(name: str) -> bool:
+    """True for a name CoolProp would read as a mixture ('A&B', 'A[0.5]&B[0.5]', a predefined 'R410A.mix')
+    or with a backend prefix ('HEOS::Nitrogen'): not a fluid name."""
+    return any(ch in name for ch in "&[]") or name.lower().endswith((".mix", ".mixture")) or "::" in name
+
+
 def known_fluid(name: str) -> bool:
     """True when CoolProp knows ``name`` as a pure fluid or an alias of one (not a mixture string such as
     'A&B' or a predefined '.mix', which CoolProp would parse itself)."""
-    import CoolProp.CoolProp as CP
-
-    if not name or any(ch in name for ch in "&[]") or name.lower().endswith((".mix", ".mixture")) or "::" in name:
+    if not name or is_mixture_string(name):
         return False
-    try:
-        CP.get_fluid_param_string(name, "name")
-    except ValueError:
-        return False
-    return True
+    return name in fluid_names()
 
 
 def closest_fluids(name: str, n: int = 3) -> list[str]:
