@@ -323,7 +323,7 @@ class _Validator(Reader):
         m = self.mapping(node, allowed, required=("name", "process", "end"), what="a leg")
         if not m:
             return None
-        name = self.text(m.get("name"), required=True, what="leg name")
+        name = self.text(m.get("name"), required=True, what="leg name", most=MAX_NAME)
         pnode = m.get("process")
         pval = str(pnode.value).strip().casefold() if pnode is not None and pnode.kind == "scalar" else ""
         if not flow and pnode is not None and pval in FLOW_PROCESSES and pval not in CLOSED_PROCESSES:

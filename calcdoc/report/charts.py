@@ -48,8 +48,14 @@ def _pyplot():
         "legend.frameon": False,
         "lines.linewidth": 1.6,
         "path.simplify": False,
+        "text.parse_math": False,      # names and titles are the user's text, drawn as written (no mathtext)
     })
     return _Figures
+
+
+def _clip(text: str, most: int = 48) -> str:
+    """A user's text for a legend or title: as written, cut with a mark where it would not fit."""
+    return text if len(text) <= most else text[: most - 1] + "…"
 
 
 def _svg(fig) -> str:
@@ -80,7 +86,7 @@ def diagrams(results, system: str) -> dict[str, str]:
         P = _conv([s.P for s in leg.path], "Pa", system)
         allv += v
         allP += P
-        ax.plot(v, P, color=PALETTE[k % len(PALETTE)], label=f"{leg.i}→{leg.i + 1}  {leg.name}")
+        ax.plot(v, P, color=PALETTE[k % len(PALETTE)], label=f"{leg.i}→{leg.i + 1}  {_clip(leg.name)}")
     _mark_states(ax, results, system, "v", "P")
     vs = Ps = None
     if sat:
@@ -107,7 +113,7 @@ def diagrams(results, system: str) -> dict[str, str]:
         T = _conv([st.T for st in leg.path], "K", system)
         alls += s
         allT += T
-        ax.plot(s, T, color=PALETTE[k % len(PALETTE)], label=f"{leg.i}→{leg.i + 1}  {leg.name}")
+        ax.plot(s, T, color=PALETTE[k % len(PALETTE)], label=f"{leg.i}→{leg.i + 1}  {_clip(leg.name)}")
     _mark_states(ax, results, system, "s", "T")
     ss = Ts = None
     if sat:
@@ -195,7 +201,7 @@ def sweep_chart(sweep: dict, system: str) -> str:
         y = _conv([p[1] for p in pts], s["unit"], system) if s["unit"] else [p[1] for p in pts]
         ax.plot([p[0] for p in pts], y, "o-", ms=3, color=PALETTE[k % len(PALETTE)])
         ax.set_ylabel(units.pretty_unit(units.display_unit(s["unit"], system)) if s["unit"] else "", fontsize=7.5)
-        ax.set_title(s["name"], fontsize=8, loc="left")
+        ax.set_title(_clip(s["name"], 90), fontsize=8, loc="left")
     axes[-1][0].set_xlabel(_label(sweep["input"], unit, system) if unit else sweep["input"])
     fig.tight_layout()
     out = _svg(fig)

@@ -81,12 +81,39 @@ def fonts_dir() -> Path:
     return Path(matplotlib.get_data_path()) / "fonts" / "ttf"
 
 
+#: A run of this many characters without a space gets a break opportunity every BREAK_EVERY characters.
+LONG_RUN, BREAK_EVERY = 60, 30
+_LONG_RUN = re.compile(r"[^\s\u200b]{%d,}" % LONG_RUN)
+_HASH = re.compile(r"[0-9a-f]{64}")
+
+
+def breakable(value):
+    """A text as written, with an invisible break opportunity (U+200B) inside every long run without spaces,
+    so that a long unbroken text wraps in the PDF instead of stretching a table (WeasyPrint's layout time
+    grows far faster than the length of an unbreakable run). Markup made by the templates, the URLs of our
+    own fonts and charts, and SHA-256 hashes (printed in full, read back by ``calcdoc verify``) are left
+    alone."""
+    import markupsafe
+
+    if not isinstance(value, str) or isinstance(value, markupsafe.Markup) or len(value) < LONG_RUN \
+            or value.startswith(("data:", "file:")):
+        return value
+
+    def cut(m):
+        run = m.group(0)
+        if _HASH.fullmatch(run):
+            return run
+        return "\u200b".join(run[k:k + BREAK_EVERY] for k in range(0, len(run), BREAK_EVERY))
+
+    return _LONG_RUN.sub(cut, value)
+
+
 def _env():
     import jinja2
 
     env = jinja2.Environment(loader=jinja2.FileSystemLoader(str(templates_dir())),
                              autoescape=True, undefined=jinja2.StrictUndefined,
-                             trim_blocks=True, lstrip_blocks=True)
+                             trim_blocks=True, lstrip_blocks=True, finalize=breakable)
     env.filters.update(num=fmt.num, qty=fmt.qty, unit_of=fmt.unit_of, value_in=fmt.value_in,
                        symbol=fmt.symbol, eq=fmt.equation, result_si=fmt.result_si,
                        css_string=fmt.css_string, flavour=fmt.flavour, subscripts=fmt.subscripts,
