@@ -10,10 +10,11 @@ import sys
 from .. import __version__, selftest
 from ..errors import EXIT_BAD_INPUT, EXIT_CHECK_FAILED, EXIT_INTERNAL, EXIT_OK, CalcdocError, JobError
 from ..job import load
+from ..report.output import output_folder
 from . import tools
 from .batch import expand, run_batch
 from .runjob import output_groups, print_job_error, run_one
-from .verify import verify
+from .verify import RerunFailed, verify
 
 __all__ = ["EXIT_BAD_INPUT", "EXIT_CHECK_FAILED", "EXIT_INTERNAL", "EXIT_OK", "build_parser", "entry", "main"]
 
@@ -99,11 +100,20 @@ def main(argv: list[str] | None = None) -> int:
 
 def _selftest(args) -> int:
     try:
+        output_folder(args.out)   # a folder that cannot be one is bad input, said before the cases run
+    except CalcdocError as exc:
+        print(f"error: {exc}", file=sys.stderr)
+        return EXIT_BAD_INPUT
+    try:
         report = selftest.run_all()
-        written = selftest.write(report, args.out, pdf=not args.no_pdf)
     except CalcdocError as exc:
         print(f"error: {exc}", file=sys.stderr)
         return EXIT_INTERNAL
+    try:
+        written = selftest.write(report, args.out, pdf=not args.no_pdf)
+    except CalcdocError as exc:   # the output folder cannot be made or written: bad input (the --out given)
+        print(f"error: {exc}", file=sys.stderr)
+        return EXIT_BAD_INPUT
     for r in report.results:
         if r.status != "pass":
             print(f"  {r.case.id} {r.status.upper()}: {r.case.title}" + (f" ({r.error})" if r.error else ""))
@@ -137,9 +147,17 @@ def _check(args) -> int:
 def _verify(args) -> int:
     try:
         result = verify(args.report, args.job, rerun=args.rerun)
+    except RerunFailed as exc:   # --rerun answers as 'calcdoc run' of the attached job would
+        for line in str(exc).splitlines():
+            print(f"error: {line}", file=sys.stderr)
+        return exc.code
     except CalcdocError as exc:
         print(f"error: {exc}", file=sys.stderr)
         return EXIT_BAD_INPUT
+    except Exception:  # an internal error: one line, never a traceback (exit 1 would mean a mismatch)
+        print(f"error: {args.report}: internal error in calcdoc {__version__} while verifying; please report it "
+              "with the PDF", file=sys.stderr)
+        return EXIT_INTERNAL
     print("\n".join(result.lines()))
     return EXIT_OK if result.ok else EXIT_CHECK_FAILED
 

@@ -25,11 +25,14 @@ from pathlib import Path
 
 from ..engine import run
 from ..engine.results import RESULTS_SCHEMA
-from ..errors import CalcdocError
+from .. import __version__
+from ..errors import EXIT_BAD_INPUT, EXIT_INTERNAL, CalcdocError, JobError
 from ..job import loads
+from ..job.files import read_regular
+from ..job.source import MAX_BYTES as MAX_JOB_BYTES
 from ..report.jsonfile import dumps
 
-__all__ = ["Finding", "Verification", "VerifyError", "read_package", "verify"]
+__all__ = ["Finding", "RerunFailed", "Verification", "VerifyError", "read_package", "verify"]
 
 #: Relative tolerance for numbers in a rerun whose bytes differ (e.g. another CoolProp build).
 RERUN_RTOL = 1e-9
@@ -85,57 +88,120 @@ class Package:
     printed_hashes: tuple[str, ...]
 
 
-def read_package(pdf_path: str | Path) -> Package:
-    """The attachments and printed hashes of a calcdoc PDF; raises :class:`VerifyError` if it is not one."""
-    from pypdf import PdfReader
-    from pypdf.errors import PdfReadError
+#: Caps on what verify reads: the PDF, each attachment once inflated, the pages whose text is read.
+MAX_PDF_BYTES = 64_000_000
+MAX_ATTACHMENT_BYTES = 16_000_000
+MAX_PAGES = 2_000
 
-    data = _read(pdf_path, "a PDF")
-    if not data.startswith(b"%PDF-"):
-        raise VerifyError(f"{pdf_path}: not a PDF file")
+
+def read_package(pdf_path: str | Path) -> Package:
+    """The attachments and printed hashes of a calcdoc PDF; raises :class:`VerifyError` if it is not one.
+
+    The file is treated as hostile: a regular file of at most MAX_PDF_BYTES, every stream inflated to at
+    most MAX_ATTACHMENT_BYTES (a decompression bomb stops at the cap), at most MAX_PAGES pages, and the
+    attached JSON parsed with its nesting bounded."""
     import io
     import logging
 
+    import pypdf
+    from pypdf import PdfReader
+    from pypdf.errors import PyPdfError
+
+    data = _read(pdf_path, "a PDF", MAX_PDF_BYTES)
+    if not data.startswith(b"%PDF-"):
+        raise VerifyError(f"{pdf_path}: not a PDF file")
     logging.getLogger("pypdf").setLevel(logging.ERROR)   # a damaged file is reported by us, once
+    cap = MAX_ATTACHMENT_BYTES
+    config = pypdf.get_configuration().with_overwrites(
+        zlib_maximum_output_length=cap, lzw_maximum_output_length=cap, run_length_maximum_output_length=cap,
+        brotli_maximum_output_length=cap, jbig2_maximum_output_length=cap, maximum_declared_stream_length=cap,
+        array_based_stream_maximum_output_length=cap, stream_decoding_work_maximum_length=4 * cap)
     try:
-        reader = PdfReader(io.BytesIO(data), strict=False)
-        attached = [(name, blob) for name, blobs in reader.attachments.items() for blob in blobs]
-        text = "\n".join(page.extract_text() or "" for page in reader.pages)
-    except (PdfReadError, ValueError, KeyError, TypeError, AttributeError) as exc:
-        raise VerifyError(f"{pdf_path}: the PDF cannot be read ({type(exc).__name__}: {str(exc)[:120]})") from None
-    results = [(n, b) for n, b in attached if _is_results(b)]
-    others = [(n, b) for n, b in attached if not _is_results(b)]
+        with pypdf.apply_configuration(config):
+            reader = PdfReader(io.BytesIO(data), strict=False)
+            attached = [(name, blob) for name, blobs in reader.attachments.items() for blob in blobs]
+            if len(reader.pages) > MAX_PAGES:
+                raise VerifyError(f"{pdf_path}: the PDF has {len(reader.pages):,} pages; a calcdoc report has at "
+                                  f"most {MAX_PAGES:,}")
+            text = "\n".join(page.extract_text() or "" for page in reader.pages)
+    except VerifyError:
+        raise
+    except PyPdfError as exc:   # a damaged file, or a limit reached (a decompression bomb)
+        raise VerifyError(f"{pdf_path}: the PDF cannot be read ({type(exc).__name__}: {_one_line(exc)})") from None
+    except (RecursionError, MemoryError):
+        raise VerifyError(f"{pdf_path}: the PDF's structure is nested too deeply or too large to read") from None
+    except Exception as exc:   # pypdf on a crafted file: anything else it raises is still a file we cannot read
+        raise VerifyError(f"{pdf_path}: the PDF cannot be read ({type(exc).__name__}: {_one_line(exc)})") from None
+    big = [n for n, b in attached if len(b) > cap]
+    if big:
+        raise VerifyError(f"{pdf_path}: the attachment {big[0]!r} is larger than {cap:,} bytes once inflated; "
+                          "calcdoc's attachments are far smaller")
+    kinds = [_is_results(b) for _, b in attached]
+    results = [a for a, k in zip(attached, kinds, strict=True) if k]
+    others = [a for a, k in zip(attached, kinds, strict=True) if not k]
     if not attached:
         raise VerifyError(f"{pdf_path}: the PDF has no attached files; it is not a calcdoc calc package "
                           "(calcdoc attaches the job file and the results JSON)")
     if len(results) != 1 or len(others) != 1:
-        names = ", ".join(n for n, _ in attached)
+        names = ", ".join(_one_line(n, 60) for n, _ in attached[:6]) + (", ..." if len(attached) > 6 else "")
         raise VerifyError(f"{pdf_path}: expected two attachments (the job file and the calcdoc results JSON), "
                           f"found {len(attached)}: {names}")
     rname, rblob = results[0]
     rtext = rblob.decode("utf-8")
     printed = tuple(re.sub(r"\s+", "", m.group(1)) for m in _PRINTED_HASH.finditer(text))
-    return Package(others[0][0], others[0][1], rname, rtext, json.loads(rtext), printed)
+    return Package(others[0][0], others[0][1], rname, rtext, _json(rtext), printed)
+
+
+def _one_line(exc: object, most: int = 120) -> str:
+    text = " ".join(str(exc).split())
+    return text if len(text) <= most else text[:most] + "…"
+
+
+#: Deepest nesting of the results JSON read back (calcdoc writes a few levels).
+MAX_JSON_DEPTH = 64
+
+
+def _json(text: str):
+    """JSON text parsed with its nesting bounded first (no recursion on a crafted document); None if not JSON."""
+    depth = 0
+    in_str = esc = False
+    for ch in text:
+        if in_str:
+            if esc:
+                esc = False
+            elif ch == "\\":
+                esc = True
+            elif ch == '"':
+                in_str = False
+        elif ch == '"':
+            in_str = True
+        elif ch in "[{":
+            depth += 1
+            if depth > MAX_JSON_DEPTH:
+                return None
+        elif ch in "]}":
+            depth -= 1
+    try:
+        return json.loads(text)
+    except (ValueError, RecursionError):
+        return None
 
 
 def _is_results(blob: bytes) -> bool:
     try:
-        obj = json.loads(blob.decode("utf-8"))
-    except (UnicodeDecodeError, ValueError):
+        obj = _json(blob.decode("utf-8"))
+    except UnicodeDecodeError:
         return False
     return isinstance(obj, dict) and obj.get("schema") == RESULTS_SCHEMA
 
 
-def _read(path: str | Path, what: str) -> bytes:
-    """A file's bytes, or a VerifyError saying why not."""
+def _read(path: str | Path, what: str, cap: int) -> bytes:
+    """A regular file's bytes (at most ``cap``), or a VerifyError saying why not."""
     try:
-        return Path(path).read_bytes()
-    except FileNotFoundError:
-        raise VerifyError(f"{path}: no such file") from None
-    except IsADirectoryError:
-        raise VerifyError(f"{path}: this is a folder, not {what}") from None
-    except OSError as exc:
-        raise VerifyError(f"{path}: cannot read the file ({exc.strerror})") from None
+        return read_regular(path, cap, what)
+    except JobError as exc:
+        p = exc.problems[0]
+        raise VerifyError(f"{path}: {p.found}" + (f"; {p.valid}" if p.valid else "")) from None
 
 
 def verify(pdf_path: str | Path, job_path: str | Path | None = None, rerun: bool = False) -> Verification:
@@ -155,9 +221,22 @@ def verify(pdf_path: str | Path, job_path: str | Path | None = None, rerun: bool
     v.add(stated == sha, f"the attached job file's sha256 {'matches' if stated == sha else 'differs from'} "
                          f"input_sha256 in the attached results ({pkg.results_name})"
                          + ("" if stated == sha else f": results state {stated}"))
+    # 1b. the results JSON written beside the report must be the one attached to it (a kill between the two
+    # renames of an older calcdoc, or two runs into one folder, could leave a mixed pair)
+    beside = Path(pdf_path).with_suffix(".json")
+    if beside.exists():
+        try:
+            text = _read(beside, "a results JSON", MAX_ATTACHMENT_BYTES).decode("utf-8", "replace")
+        except VerifyError as exc:
+            v.add(False, f"the results JSON beside the report cannot be read: {exc}")
+        else:
+            same = text == pkg.results_text
+            v.add(same, f"the results JSON beside the report ({beside.name}) "
+                        + ("is the one attached to it" if same else "is NOT the one attached to it (a mixed pair: "
+                           "the JSON and the PDF come from different runs)"))
     # 2. the report against a job file
     if job_path is not None:
-        given = _read(job_path, "a job file")
+        given = _read(job_path, "a job file", MAX_JOB_BYTES)
         gsha = hashlib.sha256(given).hexdigest()
         if gsha == sha:
             v.add(True, f"the report was made from {job_path} (same sha256)")
@@ -181,12 +260,25 @@ def _first_difference(attached: bytes, given: bytes, name: str, context: int = 0
     return "\n    differences (attached → given):\n      " + shown
 
 
+class RerunFailed(VerifyError):
+    """The attached job does not compute again: the command answers as ``calcdoc run`` of that job would
+    (``code`` 2 for bad input, 3 for an internal error), with its message."""
+
+    def __init__(self, message: str, code: int):
+        super().__init__(message)
+        self.code = code
+
+
 def _rerun(v: Verification, pkg: Package) -> None:
     try:
         text = dumps(run(loads(pkg.job_data, pkg.job_name)))
+    except JobError as exc:
+        raise RerunFailed("\n".join(str(p) for p in exc.problems), EXIT_BAD_INPUT) from None
     except CalcdocError as exc:
-        v.add(False, f"the attached job file does not compute: {str(exc).splitlines()[0]}")
-        return
+        raise RerunFailed(f"{pkg.job_name}: {exc}", EXIT_BAD_INPUT) from None
+    except (RecursionError, MemoryError, Exception):   # an internal error: one line, as calcdoc run says it
+        raise RerunFailed(f"{pkg.job_name}: internal error in calcdoc {__version__} while recomputing the attached "
+                          "job; please report it with the job file", EXIT_INTERNAL) from None
     if text == pkg.results_text:
         v.add(True, "recomputed results are identical to the attached results, byte for byte")
         return

@@ -26,7 +26,7 @@ from ..job import CLOSED_PROCESSES, FLOW_PROCESSES, loads
 from ..job.source import dump as dump_yaml
 from ..report.jsonfile import to_contract as results_json
 from ..report.methods import METHODS
-from ..report.output import write_atomic
+from ..report.output import output_folder, write_all
 from ..report.verification import render_pdf
 from . import reference as _reference
 from .cases import SOURCE_KINDS, Case, Expected, TopicFile, case_files, load_all
@@ -326,18 +326,12 @@ def dumps(report: Report) -> str:
 
 def write(report: Report, out_dir, pdf: bool = True) -> list:
     """Write ``calcdoc-selftest.json`` (and ``.pdf``) into out_dir, atomically."""
-    out = Path(out_dir)
-    try:
-        out.mkdir(parents=True, exist_ok=True)
-    except OSError as exc:
-        raise CalcdocError(f"cannot create the output folder {out}: {exc.strerror}") from None
+    out = output_folder(out_dir)
     text = dumps(report)
     pdf_bytes = None
     if pdf:
         pdf_bytes = render_pdf(text, case_files())
-    write_atomic(out / f"{STEM}.json", text.encode("utf-8"))
-    written = [out / f"{STEM}.json"]
-    if pdf_bytes is not None:
-        write_atomic(out / f"{STEM}.pdf", pdf_bytes)
-        written.append(out / f"{STEM}.pdf")
-    return written
+    targets = ([(out / f"{STEM}.pdf", pdf_bytes)] if pdf_bytes is not None else []) + \
+        [(out / f"{STEM}.json", text.encode("utf-8"))]
+    written = write_all(targets, remove=[] if pdf else [out / f"{STEM}.pdf"])
+    return sorted(written, key=lambda p: p.suffix != ".json")
