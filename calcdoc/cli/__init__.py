@@ -5,7 +5,9 @@ from __future__ import annotations
 
 import argparse
 import os
+import signal
 import sys
+import threading
 
 from .. import __version__, selftest
 from ..errors import EXIT_BAD_INPUT, EXIT_CHECK_FAILED, EXIT_INTERNAL, EXIT_OK, CalcdocError, JobError
@@ -162,7 +164,23 @@ def _verify(args) -> int:
     return EXIT_OK if result.ok else EXIT_CHECK_FAILED
 
 
+def _interrupt(signum, frame):
+    raise KeyboardInterrupt
+
+
 def _run(args) -> int:
+    """``calcdoc run``: SIGTERM is met as Ctrl-C is (the job in progress writes nothing and removes its
+    temporary files); a batch stops its workers (see :func:`run_batch`)."""
+    if threading.current_thread() is not threading.main_thread():
+        return _run_jobs(args)
+    old = signal.signal(signal.SIGTERM, _interrupt)
+    try:
+        return _run_jobs(args)
+    finally:
+        signal.signal(signal.SIGTERM, old)
+
+
+def _run_jobs(args) -> int:
     jobs, problems = expand(args.jobs)
     for p in problems:
         print(f"error: {p}", file=sys.stderr)

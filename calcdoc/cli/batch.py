@@ -5,11 +5,14 @@ from __future__ import annotations
 import argparse
 import io
 import os
+import signal
 import sys
-from contextlib import redirect_stderr, redirect_stdout
+import threading
+from contextlib import contextmanager, redirect_stderr, redirect_stdout
 from dataclasses import dataclass, field
 from pathlib import Path
 
+from ..errors import EXIT_INTERRUPTED
 from .runjob import run_one
 
 __all__ = ["Outcome", "expand", "run_batch"]
@@ -68,10 +71,77 @@ def _progress(done: int, total: int, stream) -> None:
     stream.flush()
 
 
+class _Stop(Exception):
+    """The batch was told to stop (SIGINT or SIGTERM to the parent)."""
+
+
+def _die_with_parent() -> None:
+    """Ask the kernel to end this worker if the batch process dies (even by SIGKILL): Linux only."""
+    try:
+        import ctypes
+
+        libc = ctypes.CDLL(None, use_errno=True)
+        PR_SET_PDEATHSIG = 1
+        libc.prctl(PR_SET_PDEATHSIG, signal.SIGTERM, 0, 0, 0)
+    except (OSError, AttributeError):
+        pass
+
+
+def _worker_init() -> None:
+    """A worker leaves Ctrl-C to the batch (which stops it) and ends on SIGTERM or with its parent. A worker
+    writing its pair holds SIGTERM back until both files are in place (see report.output)."""
+    signal.signal(signal.SIGINT, signal.SIG_IGN)
+    signal.signal(signal.SIGTERM, signal.SIG_DFL)
+    _die_with_parent()
+
+
+@contextmanager
+def _stop_on_signals(state: dict):
+    """SIGINT and SIGTERM raise :class:`_Stop` in the batch process (once); the old handlers come back after."""
+    if threading.current_thread() is not threading.main_thread():
+        yield
+        return
+
+    def handler(signum, frame):
+        if state.get("signal") is None:
+            state["signal"] = signum
+            raise _Stop()
+
+    old = {s: signal.signal(s, handler) for s in (signal.SIGINT, signal.SIGTERM)}
+    try:
+        yield
+    finally:
+        for s, h in old.items():
+            signal.signal(s, h)
+
+
+def _stop_pool(pool) -> None:
+    """Cancel the queued jobs and end the workers now (SIGTERM, then SIGKILL after a grace period)."""
+    procs = list(getattr(pool, "_processes", {}).values())
+    try:
+        pool.shutdown(wait=False, cancel_futures=True)
+    except Exception:   # the pool is being abandoned; its bookkeeping may be half-done
+        pass
+    for p in procs:
+        try:
+            p.terminate()
+        except (OSError, ValueError, AttributeError):
+            pass
+    for p in procs:
+        p.join(5)
+        if p.is_alive():
+            p.kill()
+            p.join(5)
+
+
 def run_batch(paths: list[str], opts: dict, quiet: bool = False, workers: int | None = None,
               groups: list[list[int]] | None = None) -> int:
     """Run the jobs in parallel; print their errors, then a summary table. Returns the worst exit code.
-    ``groups`` (indices into paths) run in one worker each, in order; by default every job alone."""
+    ``groups`` (indices into paths) run in one worker each, in order; by default every job alone.
+
+    SIGINT or SIGTERM stops the batch: queued jobs do not start, the workers are ended (a worker renaming
+    its pair into place finishes that first), nothing is written after, and the summary says which jobs
+    were written, which were stopped while computing and which never started."""
     from concurrent.futures import ProcessPoolExecutor, as_completed
     from concurrent.futures.process import BrokenProcessPool
 
@@ -81,11 +151,16 @@ def run_batch(paths: list[str], opts: dict, quiet: bool = False, workers: int | 
     bar = sys.stderr.isatty() and not quiet
     outcomes: dict[int, Outcome] = {}
     retry: list[int] = []
+    running: list[int] = []
     done = 0
+    state: dict = {}
     if bar:
         _progress(0, total, sys.stderr)
-    try:
-        with ProcessPoolExecutor(max_workers=workers) as pool:
+    pool = None
+    futures: dict = {}
+    with _stop_on_signals(state):   # a second signal while stopping is ignored (the handler raises once)
+        try:
+            pool = ProcessPoolExecutor(max_workers=workers, initializer=_worker_init)
             futures = {pool.submit(_group, [paths[k] for k in g], opts): g for g in groups}
             for fut in as_completed(futures):
                 g = futures[fut]
@@ -98,23 +173,33 @@ def run_batch(paths: list[str], opts: dict, quiet: bool = False, workers: int | 
                 done += len(g)
                 if bar:
                     _progress(done, total, sys.stderr)
-        # a job that killed its worker process took the pool down: run the unfinished ones again,
-        # each in a pool of its own, so that only the job that breaks its process is lost
-        for k in sorted(retry):
-            with ProcessPoolExecutor(max_workers=1) as pool:
+            pool.shutdown(wait=True)
+            pool = None
+            # a job that killed its worker process took the pool down: run the unfinished ones again,
+            # each in a pool of its own, so that only the job that breaks its process is lost
+            for k in sorted(retry):
+                running = [k]
+                pool = ProcessPoolExecutor(max_workers=1, initializer=_worker_init)
                 try:
                     outcomes[k] = pool.submit(_one, paths[k], opts).result()
                 except BrokenProcessPool:
                     outcomes[k] = Outcome(paths[k], 3, f"error: {paths[k]}: the process computing this job stopped "
                                                        "unexpectedly; please report it with the job file\n")
-            done += 1
+                pool.shutdown(wait=True)
+                pool = None
+                running = []
+                done += 1
+                if bar:
+                    _progress(done, total, sys.stderr)
+        except (_Stop, KeyboardInterrupt):
+            started = set(running)
+            if pool is not None:
+                if not running:
+                    started = {k for f, g in futures.items() if f.running() for k in g}
+                _stop_pool(pool)
             if bar:
-                _progress(done, total, sys.stderr)
-    except KeyboardInterrupt:
-        if bar:
-            sys.stderr.write("\n")
-        print("interrupted; jobs in progress were not written", file=sys.stderr)
-        return 130
+                sys.stderr.write("\n")
+            return _stopped(paths, outcomes, started, state.get("signal") or signal.SIGINT)
     if bar:
         sys.stderr.write("\n")
     for k in range(total):
@@ -122,6 +207,30 @@ def run_batch(paths: list[str], opts: dict, quiet: bool = False, workers: int | 
             sys.stderr.write(outcomes[k].stderr)
     print(summary_table([outcomes[k] for k in range(total)]), end="")
     return max(o.code for o in outcomes.values())
+
+
+def _stopped(paths: list[str], outcomes: dict[int, Outcome], started: set[int], signum: int) -> int:
+    """What a stopped batch did and did not do, truly: each job finished (and whether it wrote), stopped while
+    computing, or never started."""
+    name = signal.Signals(signum).name
+    for k in sorted(outcomes):
+        if outcomes[k].stderr:
+            sys.stderr.write(outcomes[k].stderr)
+    lines = [f"stopped by {name}: the jobs still queued were not started and the workers were ended; nothing is "
+             "written after this point."]
+    for k, path in enumerate(paths):
+        if k in outcomes:
+            o = outcomes[k]
+            w = o.info.get("written")
+            lines.append(f"  {STATUS.get(o.code, f'exit {o.code}'):12} {path}: "
+                         + (f"written: {', '.join(w)}" if w else "finished, nothing written"))
+        elif k in started:
+            lines.append(f"  {'STOPPED':12} {path}: not finished (stopped while computing or about to start); the "
+                         "output folder holds its earlier report, if any, or a complete new pair, never a mix")
+        else:
+            lines.append(f"  {'NOT STARTED':12} {path}: not started, nothing written")
+    print("\n".join(lines), file=sys.stderr)
+    return EXIT_INTERRUPTED
 
 
 def summary_table(outcomes: list[Outcome]) -> str:

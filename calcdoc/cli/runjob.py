@@ -8,10 +8,11 @@ from pathlib import Path
 from .. import __version__
 from ..engine import run
 from ..engine.revision import with_changes
-from ..errors import EXIT_BAD_INPUT, EXIT_CHECK_FAILED, EXIT_INTERNAL, EXIT_OK, CalcdocError, JobError, PhysicsError
+from ..errors import EXIT_BAD_INPUT, EXIT_CHECK_FAILED, EXIT_INTERNAL, EXIT_INTERRUPTED, EXIT_OK, CalcdocError, JobError, PhysicsError
 from ..job import load
-from ..job.source import decode, load as read_yaml
-from ..report.output import output_paths, safe_stem, write
+from ..job.files import read_regular
+from ..job.source import MAX_BYTES, decode, load as read_yaml
+from ..report.output import WRITTEN, output_paths, safe_stem, write
 from ..report.terminal import summary
 
 __all__ = ["output_groups", "print_job_error", "run_one"]
@@ -35,7 +36,7 @@ def output_groups(paths: list[str]) -> list[list[int]]:
     for k, path in enumerate(paths):
         stem = f"\0{k}"
         try:
-            calc = read_yaml(decode(Path(path).read_bytes(), path), path).value.get("calc")
+            calc = read_yaml(decode(read_regular(path, MAX_BYTES, "a job file (.yaml)"), path), path).value.get("calc")
             if calc is not None and calc.kind == "map":
                 number, revision = calc.value.get("number"), calc.value.get("revision")
                 if number is not None and revision is not None:
@@ -72,9 +73,13 @@ def run_one(path: str, args, info: dict | None = None) -> int:
     except CalcdocError as exc:
         print(f"error: {path}: {exc}", file=sys.stderr)
         return EXIT_BAD_INPUT
-    except KeyboardInterrupt:
-        print("interrupted; nothing was written for the job in progress", file=sys.stderr)
-        return 130
+    except KeyboardInterrupt as exc:
+        if exc.args[:1] == (WRITTEN,):
+            print(f"interrupted just after the job's report was written ({', '.join(exc.args[1])})", file=sys.stderr)
+        else:
+            print("interrupted; nothing was written for the job in progress (earlier outputs are unchanged)",
+                  file=sys.stderr)
+        return EXIT_INTERRUPTED
     except Exception:  # an internal error: one line for the user, the traceback only with --debug
         where = ""
         if args.debug:

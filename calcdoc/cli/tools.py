@@ -8,7 +8,8 @@ from pathlib import Path
 
 from ..engine import run
 from ..engine.revision import compare
-from ..errors import EXIT_BAD_INPUT, EXIT_OK, CalcdocError, JobError, PhysicsError
+from .. import __version__
+from ..errors import EXIT_BAD_INPUT, EXIT_INTERNAL, EXIT_INTERRUPTED, EXIT_OK, CalcdocError, JobError, PhysicsError
 from ..job import load
 from ..job.revision import load_revision
 from ..job.schema import job_schema
@@ -37,6 +38,13 @@ def diff(args) -> int:
     except (PhysicsError, CalcdocError) as exc:
         print(f"error: {exc}", file=sys.stderr)
         return EXIT_BAD_INPUT
+    except KeyboardInterrupt:
+        print("interrupted", file=sys.stderr)
+        return EXIT_INTERRUPTED
+    except Exception:  # an internal error: one line, never a traceback
+        print(f"error: internal error in calcdoc {__version__} comparing {args.old} and {args.new or args.against}; "
+              "please report it with the job files", file=sys.stderr)
+        return EXIT_INTERNAL
     print(diff_text(d, new.units), end="")
     return EXIT_OK
 

@@ -34,9 +34,11 @@ from ..errors import CalcdocError
 from .jsonfile import dumps
 from .render import render_pdf, safe_stem
 
-__all__ = ["JOURNAL_SUFFIX", "clean_folder", "folder_lock", "output_folder", "output_paths", "write", "write_all",
+__all__ = ["JOURNAL_SUFFIX", "WRITTEN", "clean_folder", "folder_lock", "output_folder", "output_paths", "write", "write_all",
            "write_atomic"]
 
+#: First argument of a KeyboardInterrupt raised after the pair was in place (the files written are the second).
+WRITTEN = "written"
 #: The journal of a pair being renamed into place: ``.<stem>.pair`` in the output folder.
 JOURNAL_SUFFIX = ".pair"
 #: Temporary files calcdoc makes beside a target: ``.<name>.<random>.part`` (tempfile's random part).
@@ -207,6 +209,7 @@ def write_all(targets: list[tuple[Path, bytes]], remove: list[Path] | None = Non
     staged: list[tuple[str, Path]] = []
     journal = out / f".{targets[-1][0].stem}{JOURNAL_SUFFIX}"
     target = targets[0][0]
+    committed = False
     with folder_lock(out):
         clean_folder(out)
         try:
@@ -229,10 +232,16 @@ def write_all(targets: list[tuple[Path, bytes]], remove: list[Path] | None = Non
                         os.unlink(p)
                 if len(steps) > 1:
                     os.unlink(journal)
+                committed = True
             _sync_folder(out)
         except OSError as exc:
             _discard(staged, journal)
             raise CalcdocError(f"cannot write {target}: {exc.strerror or exc}; earlier outputs are unchanged") from None
+        except KeyboardInterrupt as exc:
+            if committed:   # the signal held back during the renames: the new pair is in place
+                raise KeyboardInterrupt(WRITTEN, [str(t) for _, t in staged]) from exc
+            _discard(staged, journal)
+            raise
         except BaseException:
             _discard(staged, journal)
             raise
