@@ -54,8 +54,8 @@ def read_regular(path: str | Path, cap: int, what: str = "a job file") -> bytes:
         if not stat.S_ISREG(st.st_mode):
             raise _refuse(path, f"this is not a regular file, not {what}", valid)
         if st.st_size > cap:
-            raise _refuse(path, f"the file is {st.st_size:,} bytes, larger than the {cap:,} bytes {what} may hold",
-                          f"{what} is at most {cap:,} bytes")
+            raise _refuse(path, f"the file is {st.st_size:,} bytes, larger than {cap:,} bytes (the most {what} "
+                          "may hold)", f"{what} is at most {cap:,} bytes")
         chunks, size = [], 0
         while size <= cap:
             try:
@@ -67,7 +67,7 @@ def read_regular(path: str | Path, cap: int, what: str = "a job file") -> bytes:
             chunks.append(chunk)
             size += len(chunk)
         if size > cap:
-            raise _refuse(path, f"the file is larger than the {cap:,} bytes {what} may hold",
+            raise _refuse(path, f"the file is larger than {cap:,} bytes (the most {what} may hold)",
                           f"{what} is at most {cap:,} bytes")
         return b"".join(chunks)
     except OSError as exc:
