@@ -15,6 +15,14 @@ __all__ = ["EQUATIONS", "FACTS", "NOTES", "STAGING_RULES", "WARNINGS", "equation
 
 #: warning code → sentence
 WARNINGS: dict[str, str] = {
+    "eos.beyond_paper_T": "Gas: state {state} is at T = {T:K~4}, above {Tmax:K~4}, the highest temperature for which "
+                          "the reference equation of state of {fluid} ({ref}) was validated by its authors. The "
+                          "library evaluates it there, but the values are extrapolated; confirm them by other means "
+                          "before relying on them.",
+    "eos.beyond_paper_P": "Gas: state {state} is at P = {P:Pa~5}, above {pmax:Pa~5}, the highest pressure for which the "
+                          "reference equation of state of {fluid} ({ref}) was validated by its authors. The library "
+                          "evaluates it there, but the values are extrapolated; confirm them by other means before "
+                          "relying on them.",
     "gas.envelope_failed": "Gas: the phase envelope of the mixture could not be traced ({detail}); mixture states are "
                            "flashed without an imposed phase.",
     "throttle.two_phase_outlet": "Leg '{leg}': the outlet is two-phase at P = {P:Pa~5}, saturation temperature {T:K~4}, "
