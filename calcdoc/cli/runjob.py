@@ -8,7 +8,16 @@ from pathlib import Path
 from .. import __version__
 from ..engine import run
 from ..engine.revision import with_changes
-from ..errors import EXIT_BAD_INPUT, EXIT_CHECK_FAILED, EXIT_INTERNAL, EXIT_INTERRUPTED, EXIT_OK, CalcdocError, JobError, PhysicsError
+from ..errors import (
+    EXIT_BAD_INPUT,
+    EXIT_CHECK_FAILED,
+    EXIT_INTERNAL,
+    EXIT_INTERRUPTED,
+    EXIT_OK,
+    CalcdocError,
+    JobError,
+    PhysicsError,
+)
 from ..job import load
 from ..job.files import read_regular
 from ..job.source import MAX_BYTES, decode, load as read_yaml

@@ -6,9 +6,9 @@ import json
 import sys
 from pathlib import Path
 
+from .. import __version__
 from ..engine import run
 from ..engine.revision import compare
-from .. import __version__
 from ..errors import EXIT_BAD_INPUT, EXIT_INTERNAL, EXIT_INTERRUPTED, EXIT_OK, CalcdocError, JobError, PhysicsError
 from ..job import load
 from ..job.revision import load_revision

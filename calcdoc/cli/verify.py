@@ -23,9 +23,9 @@ import re
 from dataclasses import dataclass, field
 from pathlib import Path
 
+from .. import __version__
 from ..engine import run
 from ..engine.results import RESULTS_SCHEMA
-from .. import __version__
 from ..errors import EXIT_BAD_INPUT, EXIT_INTERNAL, CalcdocError, JobError
 from ..job import loads
 from ..job.files import read_regular

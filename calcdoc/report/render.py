@@ -83,7 +83,7 @@ def fonts_dir() -> Path:
 
 #: A run of this many characters without a space gets a break opportunity every BREAK_EVERY characters.
 LONG_RUN, BREAK_EVERY = 60, 30
-_LONG_RUN = re.compile(r"[^\s\u200b]{%d,}" % LONG_RUN)
+_LONG_RUN = re.compile(rf"[^\s\u200b]{{{LONG_RUN},}}")
 _HASH = re.compile(r"[0-9a-f]{64}")
 
 

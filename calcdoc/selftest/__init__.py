@@ -16,12 +16,10 @@ import math
 import platform
 import re
 from dataclasses import dataclass, field
-from pathlib import Path
 from typing import Any
 
 from .. import __version__
 from ..engine import run
-from ..errors import CalcdocError
 from ..job import CLOSED_PROCESSES, FLOW_PROCESSES, loads
 from ..job.source import dump as dump_yaml
 from ..report.jsonfile import to_contract as results_json

@@ -3,7 +3,6 @@ earlier complete pair or the new one (never a mix, never a partial file), and th
 pair; a batch stopped by SIGTERM ends its workers, starts no queued job and says what it did not write."""
 from __future__ import annotations
 
-import os
 import shutil
 import signal
 import subprocess

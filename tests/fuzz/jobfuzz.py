@@ -80,7 +80,7 @@ def _data_mutation(rng: random.Random, data) -> tuple[str, str]:
     elif kind == "odd":
         _set(data, path, rng.choice(ODD_SCALARS))
     elif kind == "retype":
-        _, value = next((pv for pv in _walk(data) if pv[0] == path))
+        _, value = next(pv for pv in _walk(data) if pv[0] == path)
         _set(data, path, rng.choice(([value], {"value": value}, str(value), None, 1, True)))
     elif kind == "nest":
         deep: object = "1 bar"
@@ -123,7 +123,7 @@ def _text_mutation(rng: random.Random, text: str) -> tuple[str, str]:
     if kind == "alias_bomb":
         bomb = "a: &a [x, x, x, x, x, x, x, x, x]\n" + "".join(
             f"{c}: &{c} [*{p}, *{p}, *{p}, *{p}, *{p}, *{p}, *{p}, *{p}, *{p}]\n"
-            for p, c in zip("abcdefgh", "bcdefghi"))
+            for p, c in zip("abcdefgh", "bcdefghi", strict=True))
         return kind, bomb + text
     if kind == "anchor":
         return kind, text.replace("legs:", "legs: &L", 1).replace("calc:", "calc: &C", 1) + "extra: *C\n"
