@@ -69,6 +69,7 @@ def load(text: str, name: str) -> Node:
 
     try:
         _check_depth(text, name)
+        _check_expansion(text, name)
         root = yaml.compose(text, Loader=yaml.SafeLoader)
     except yaml.MarkedYAMLError as exc:
         raise JobError([_syntax_problem(exc, name)]) from None
@@ -155,6 +156,46 @@ def _check_depth(text: str, name: str) -> None:
                                         "a job file is a few levels deep (legs → end → pressure)")])
         elif isinstance(tok, closes):
             depth -= 1
+
+
+def _check_expansion(text: str, name: str) -> None:
+    """Refuse a file whose aliases expand it beyond MAX_NODES values, at the alias that crosses the bound (from
+    the event stream, before anything is built): the place to fix is that alias, not the anchor it repeats."""
+    import yaml
+
+    sizes: dict[str, int] = {}
+    stack: list[tuple[str | None, int]] = []   # open collections: (anchor, values so far)
+    total = 0
+
+    def add(n: int) -> None:
+        if stack:
+            anchor, count = stack[-1]
+            stack[-1] = (anchor, count + n)
+
+    for ev in yaml.parse(text, Loader=yaml.SafeLoader):
+        if isinstance(ev, yaml.AliasEvent):
+            n = sizes.get(ev.anchor, 1)
+            total += n
+            add(n)
+            if total > MAX_NODES:
+                m = ev.start_mark
+                raise JobError([Problem(name, m.line + 1, m.column + 1, "",
+                                        f"the alias *{ev.anchor} here expands the file to more than {MAX_NODES:,} "
+                                        "values (anchors and aliases repeated many times)",
+                                        "write the job out plainly; a job file needs a few hundred values at most")])
+        elif isinstance(ev, (yaml.SequenceStartEvent, yaml.MappingStartEvent)):
+            total += 1
+            stack.append((ev.anchor, 1))
+        elif isinstance(ev, (yaml.SequenceEndEvent, yaml.MappingEndEvent)):
+            anchor, count = stack.pop()
+            if anchor is not None:
+                sizes[anchor] = count
+            add(count)
+        elif isinstance(ev, yaml.ScalarEvent):
+            total += 1
+            add(1)
+            if ev.anchor is not None:
+                sizes[ev.anchor] = 1
 
 
 class _Builder:
