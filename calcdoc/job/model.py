@@ -227,6 +227,9 @@ class LimitSpec:
     line: int
     col: int
     at_where: tuple[int, int] = (0, 0)
+    #: the zero a percent of this quantity is measured from [SI]: 0 for a quantity with a true zero, the
+    #: site atmosphere for a pressure limit written as gauge, None where a percent means nothing
+    percent_zero: float | None = 0.0
 
 
 @dataclass(frozen=True)

@@ -15,6 +15,7 @@ from urllib.parse import unquote, urlsplit
 
 from .. import units
 from ..engine import software_versions
+from ..job.quantities import PERCENT_MARGIN, QUANTITIES, percent_margin
 from . import format as fmt, methods, words
 from .charts import diagrams, sweep_chart, time_chart
 
@@ -144,6 +145,8 @@ def context(results) -> dict:
         "software": results.software or software_versions(),
         "fonts_url": fonts_dir().as_uri(),
         "title_text": f"{job.calc.number} rev. {job.calc.revision} — {job.calc.title}",
+        "percent_of": lambda name: percent_margin(QUANTITIES[name])[0] if name in QUANTITIES else "",
+        "gauge_quantities": [n for n, (k, _) in PERCENT_MARGIN.items() if k == "gauge"],
     }
 
 

@@ -77,7 +77,12 @@ def summary(results, written) -> None:
               f"{show(solve['achieved']['value'], solve['achieved']['unit']) if solve['achieved']['unit'] else solve['achieved']['value']}"
               f", {solve['iterations']} iterations)")
     for c in results.checks:
-        print(f"  check {c.name} at {c.where}: {c.status.upper()}")
+        margin = f"margin {show(c.margin, c.unit, difference=True)}"
+        if c.required_entered:
+            margin += f" (required {c.required_entered}" + (
+                f" = {show(c.required_margin, c.unit, difference=True)})" if "%" in c.required_entered else ")")
+        print(f"  check {c.name} at {c.where}: {c.status.upper()}: value {show(c.value.value, c.unit)}, "
+              f"{c.kind} {show(c.limit, c.unit)}, {margin}")
     for w in results.warnings:
         print(f"  warning: {say(w, system)}")
     for p in written:
