@@ -16,6 +16,7 @@ from pathlib import Path
 from .. import units
 from ..errors import JobError, Problem
 from .flowopts import FLOW_OPTION_KEYS, chain_problems, read_options
+from .displayunits import base_system, read_units
 from .limits import Places, read_limits
 from .model import GasSpec, Input, Job, LegSpec, Site, StartSpec, TitleBlock, keys_of
 from .reader import Reader, describe as _describe
@@ -89,9 +90,10 @@ class _Validator(Reader):
                 self.add(ver, f"schema version {ver.value!r} is not supported", f"write 'calcdoc: {SCHEMA_VERSION}'")
         calc = self.title_block(top.get("calc"))
         system = self.enum(top.get("system"), ("closed", "flow", "vessel"), default="closed")
-        unit_system = self.enum(top.get("units"), ("SI", "US"), default="SI")
-        self.system = unit_system or "SI"
+        self.system = base_system(top.get("units"))     # for values in messages until the units are read
         site = self.site(top.get("site"))
+        unit_system = read_units(self, top.get("units"), site.P_atm)
+        self.system = unit_system or self.system
         gas = self.gas(top.get("gas"))
         vessel = None
         if system == "vessel":

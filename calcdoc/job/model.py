@@ -13,6 +13,7 @@ from dataclasses import MISSING, dataclass, field, fields
 from typing import Any
 
 from ..errors import Problem
+from ..units import DisplayUnits
 from .quantities import Quantity
 
 __all__ = ["Drop", "FollowSpec", "GasSpec", "Input", "Job", "LegOptions", "LegSpec", "LimitSpec", "Site",
@@ -283,7 +284,7 @@ class Job:
     data: bytes                     # the job file, byte for byte
     sha256: str
     calc: TitleBlock
-    units: str                      # report unit system: "SI" or "US"
+    units: DisplayUnits             # report units: base system "SI" or "US" and the job's own units
     site: Site
     gas: GasSpec
     system: str                     # "closed", "flow" or "vessel"

@@ -145,6 +145,7 @@ def context(results) -> dict:
         "software": results.software or software_versions(),
         "fonts_url": fonts_dir().as_uri(),
         "title_text": f"{job.calc.number} rev. {job.calc.revision} — {job.calc.title}",
+        "unit_system_text": fmt.unit_system_text,
         "percent_of": lambda name: percent_margin(QUANTITIES[name])[0] if name in QUANTITIES else "",
         "gauge_quantities": [n for n, (k, _) in PERCENT_MARGIN.items() if k == "gauge"],
     }

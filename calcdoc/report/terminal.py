@@ -4,7 +4,7 @@ from __future__ import annotations
 from .. import units
 from ..engine.revision import Diff
 from ..units import display
-from .format import _num
+from .format import _num, settled
 from .words import gas_text, say
 
 __all__ = ["diff_text", "summary"]
@@ -49,6 +49,7 @@ def summary(results, written) -> None:
 
     def show(value, unit, sig=5, difference=False):
         v, u = display(value, unit, system, difference=difference)
+        v = settled(v, value, unit)
         text = _num(v, sig) if v == 0 or 1e-3 <= abs(v) < 1e7 else f"{v:.{sig - 1}e}"   # no markup on a terminal
         return f"{text} {u}".replace("\u2009", " ").strip()
 
