@@ -18,6 +18,7 @@ from ..engine import software_versions
 from ..job.quantities import PERCENT_MARGIN, QUANTITIES, percent_margin
 from . import format as fmt, methods, words
 from .charts import diagrams, sweep_chart, time_chart
+from .conclusions import conclusions
 
 CAUTIONS = (
     "Compressed gas stores energy. A vessel, cylinder or pipe that fails at pressure can release it "
@@ -146,6 +147,7 @@ def context(results) -> dict:
         "fonts_url": fonts_dir().as_uri(),
         "title_text": f"{job.calc.number} rev. {job.calc.revision} — {job.calc.title}",
         "unit_system_text": fmt.unit_system_text,
+        "conclusions": conclusions(results, system),
         "percent_of": lambda name: percent_margin(QUANTITIES[name])[0] if name in QUANTITIES else "",
         "gauge_quantities": [n for n, (k, _) in PERCENT_MARGIN.items() if k == "gauge"],
     }
