@@ -71,10 +71,12 @@ def test_every_number_in_summary_results_and_checks_carries_the_chosen_unit():
     res = _results(OWN)
     pdf = render.render_pdf(res, jsonfile.dumps(res))
     text = "\n".join(p.extract_text() for p in PdfReader(io.BytesIO(pdf)).pages)
+    conclusions = text[text.index("Conclusions"):text.index("1 Summary")]
     summary = text[text.index("1 Summary"):text.index("2 Basis")]
-    results = text[text.index("6 Results"):text.index("Train totals")]
+    start = text.index("6 Results")
+    results = text[start:text.index("Train totals", start)]
     checks = text[text.index("7 Design checks"):text.index("8 Diagrams")]
-    for part in (summary, results, checks):
+    for part in (conclusions, summary, results, checks):
         for unit in ("kPa", "m³/h", "psia", "°R", "°F"):
             assert unit not in part, f"{unit} in:\n{part}"
     assert "P [barg]" in results and "[L/s]" in results and "[°C]" in results
