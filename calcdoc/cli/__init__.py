@@ -12,7 +12,7 @@ from ..errors import EXIT_BAD_INPUT, EXIT_CHECK_FAILED, EXIT_INTERNAL, EXIT_OK, 
 from ..job import load
 from . import tools
 from .batch import expand, run_batch
-from .runjob import output_groups, print_job_error, run_one
+from .runjob import print_job_warnings, output_groups, print_job_error, run_one
 from .verify import verify
 
 __all__ = ["EXIT_BAD_INPUT", "EXIT_CHECK_FAILED", "EXIT_INTERNAL", "EXIT_OK", "build_parser", "entry", "main"]
@@ -122,8 +122,10 @@ def _check(args) -> int:
     worst = EXIT_OK
     for path in args.jobs:
         try:
-            load(path)
-            print(f"{path}: OK")
+            job = load(path)
+            print_job_warnings(job)
+            print(f"{path}: OK" + (f" ({len(job.warnings)} warning{'s' if len(job.warnings) > 1 else ''})"
+                                   if job.warnings else ""))
         except JobError as exc:
             print_job_error(exc)
             worst = EXIT_BAD_INPUT

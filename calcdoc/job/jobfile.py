@@ -21,6 +21,7 @@ from .limits import Places, read_limits
 from .model import GasSpec, Input, Job, LegSpec, Site, StartSpec, TitleBlock, keys_of
 from .reader import Reader, describe as _describe
 from .solve import read_solve
+from .statics import static_problems, static_warnings
 from .source import MAX_BYTES as _MAX_BYTES, Node, decode, leaves, load as _load_yaml
 from .sweep import read_sweep
 from .vesselfile import read_vessel, read_vessel_leg
@@ -131,6 +132,9 @@ class _Validator(Reader):
                                   where=dict(self.where))
         if job.system == "flow" and not self.problems:
             self.problems += chain_problems(job)
+        if not self.problems:
+            self.problems += static_problems(job)
+            job = dataclasses.replace(job, warnings=tuple(static_warnings(job)))
         return job
 
     def _locate(self, path: str) -> tuple[int, int]:

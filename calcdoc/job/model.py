@@ -298,6 +298,7 @@ class Job:
     sweep: SweepSpec | None = None
     vessel: VesselSpec | None = None
     solve: SolveSpec | None = None
+    warnings: tuple[Problem, ...] = ()   # what the job file shows without computing that does not stop a run
 
     @property
     def text(self) -> str:
