@@ -16,7 +16,7 @@ from urllib.parse import unquote, urlsplit
 from .. import units
 from ..engine import software_versions
 from ..job.quantities import PERCENT_MARGIN, QUANTITIES, percent_margin
-from . import format as fmt, methods, words
+from . import changes, format as fmt, methods, words
 from .charts import diagrams, sweep_chart, time_chart
 from .conclusions import conclusions
 
@@ -148,6 +148,10 @@ def context(results) -> dict:
         "title_text": f"{job.calc.number} rev. {job.calc.revision} — {job.calc.title}",
         "unit_system_text": fmt.unit_system_text,
         "conclusions": conclusions(results, system),
+        "marks": changes.marks(results),
+        "input_label": changes.input_label,
+        "result_label": changes.result_label,
+        "shows_percent": changes.shows_percent,
         "percent_of": lambda name: percent_margin(QUANTITIES[name])[0] if name in QUANTITIES else "",
         "gauge_quantities": [n for n, (k, _) in PERCENT_MARGIN.items() if k == "gauge"],
     }

@@ -4,6 +4,7 @@ from __future__ import annotations
 from .. import units
 from ..engine.revision import Diff
 from ..units import display
+from .changes import result_label, shows_percent
 from .format import _num, settled
 from .words import gas_text, say
 
@@ -35,8 +36,8 @@ def diff_text(diff: Diff, system: str = "SI") -> str:
         change = ""
         if m.change is not None:
             change = f"   change {_show(m.change, m.unit, system, difference=True)}"
-            change += f" ({m.percent:+.3g} %)" if m.percent is not None else ""
-        lines.append(f"  {m.key}: {_show(m.old, m.unit, system, m.difference)} → "
+            change += f" ({m.percent:+.3g} %)" if m.percent is not None and shows_percent(m.key, system) else ""
+        lines.append(f"  {result_label(m.key)}: {_show(m.old, m.unit, system, m.difference)} → "
                      f"{_show(m.new, m.unit, system, m.difference)}{change}")
     lines.append(f"  {diff.unchanged} result{'s' if diff.unchanged != 1 else ''} unchanged.")
     return "\n".join(lines) + "\n"
