@@ -20,8 +20,23 @@ _SUBST_UNITS = {"Pa": "kPa", "J": "kJ", "J/kg": "kJ/kg", "J/(kg*K)": "kJ/(kg*K)"
 
 
 def num(x: float | None, sig: int = 5, strip: bool = False) -> Markup:
-    """A number for the report, to ``sig`` significant figures."""
-    return Markup(_num(x, sig, strip))
+    """A number for the report: a number with thousands separators is kept on one line."""
+    text = _num(x, sig, strip)
+    return Markup(f'<span class="nw">{text}</span>' if "\u2009" in text else text)
+
+
+def refs(numbers) -> str:
+    """Reference numbers as cited: runs of three or more joined as a range ([3, 9–14])."""
+    nums = sorted(set(numbers))
+    out: list[str] = []
+    i = 0
+    while i < len(nums):
+        j = i
+        while j + 1 < len(nums) and nums[j + 1] == nums[j] + 1:
+            j += 1
+        out.append(f"{nums[i]}–{nums[j]}" if j - i >= 2 else ", ".join(str(n) for n in nums[i:j + 1]))
+        i = j + 1
+    return ", ".join(out)
 
 
 def css_string(text: str) -> Markup:

@@ -89,7 +89,7 @@ def _env():
     env = jinja2.Environment(loader=jinja2.FileSystemLoader(str(templates_dir())),
                              autoescape=True, undefined=jinja2.StrictUndefined,
                              trim_blocks=True, lstrip_blocks=True)
-    env.filters.update(num=fmt.num, qty=fmt.qty, unit_of=fmt.unit_of, value_in=fmt.value_in,
+    env.filters.update(num=fmt.num, refs=fmt.refs, qty=fmt.qty, unit_of=fmt.unit_of, value_in=fmt.value_in,
                        symbol=fmt.symbol, eq=fmt.equation, result_si=fmt.result_si,
                        css_string=fmt.css_string, flavour=fmt.flavour, subscripts=fmt.subscripts,
                        say=words.say, note=words.note, gas_text=words.gas_text)

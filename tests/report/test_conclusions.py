@@ -52,3 +52,13 @@ def test_a_failing_check_governs_and_the_count_says_so():
     text = _section(render.render_html(res))
     assert "1 of 2 design checks pass; this calculation does not pass" in text
     assert "The governing check is Motor at train" in text and "against a required 10 %" in text
+
+
+def test_reference_numbers_are_cited_as_ranges_and_numbers_do_not_split():
+    from calcdoc.report import format as fmt
+
+    assert fmt.refs([3, 9, 10, 11, 12, 13, 14]) == "3, 9–14"
+    assert fmt.refs([2, 1, 4, 5]) == "1, 2, 4, 5"
+    # a number with a thousands separator is kept on one line (the separator is a breaking thin space)
+    assert str(fmt.num(3436.13, 6)) == '<span class="nw">3\u2009436.13</span>'
+    assert str(fmt.num(12.5)) == "12.500"
