@@ -51,6 +51,14 @@ def conclusions(results, S) -> list[Markup]:
         if hot:
             leg, T = max(hot, key=lambda lt: lt[1])
             out.append(f"The highest compressor discharge temperature is {q(T, 'K', S, 4)}, at {escape(leg.name)}.")
+    elif results.system == "vessel" and results.legs:
+        t_total = sum(leg.quantities["duration"].value for leg in results.legs if "duration" in leg.quantities)
+        T_lo = min(leg.quantities["T_min"].value for leg in results.legs if "T_min" in leg.quantities)
+        T_hi = max(leg.quantities["T_max"].value for leg in results.legs if "T_max" in leg.quantities)
+        out.append(f"The vessel goes from {q(first.P, 'Pa', S)} and {q(first.T, 'K', S, 4)} (state 1) to "
+                   f"{q(last.P, 'Pa', S)} and {q(last.T, 'K', S, 4)} (state {results.states[-1].label}) in "
+                   f"{q(t_total, 's', S, 4)} over {len(results.legs)} leg{'s' if len(results.legs) > 1 else ''}; "
+                   f"the gas temperature stays between {q(T_lo, 'K', S, 4)} and {q(T_hi, 'K', S, 4)}.")
     elif results.legs:
         W = sum(leg.quantities["W_by_gas"].value for leg in results.legs if "W_by_gas" in leg.quantities)
         Q = sum(leg.quantities["Q_to_gas"].value for leg in results.legs if "Q_to_gas" in leg.quantities)
@@ -62,6 +70,12 @@ def conclusions(results, S) -> list[Markup]:
                    f"highest temperature {q(Tmax, 'K', S, 4)}. Over all legs the gas does a net work of "
                    f"{q(W, 'J', S)} and takes in a net heat of {q(Q, 'J', S)} (work by the gas and heat to "
                    f"the gas positive).")
+    sv = results.extra.get("solve")
+    if sv:
+        v = sv["value"]
+        shown = q(v["value"], v["unit"], S, 5) if v.get("unit") else fmt.num(v["value"], 5)
+        out.append(f"Solved: {escape(sv['vary'])} = {shown}, the value that meets the target "
+                   f"({escape(sv['quantity'])}).")
     checks = results.checks
     if not checks:
         out.append("No design limits are set in this job: no result is checked against a limit.")
