@@ -18,6 +18,7 @@ __all__ = [
     "DIMENSIONS",
     "DISPLAY_KINDS",
     "DisplayUnits",
+    "Units",
     "display_spec",
     "P_STD",
     "convert",
@@ -451,7 +452,7 @@ class DisplayUnits:
     P_atm: float | None = None
     spelled: tuple[tuple[str, str], ...] = ()     # (kind, unit as the user wrote it), for the report
 
-    def __eq__(self, other):
+    def __eq__(self, other: object) -> bool:
         if isinstance(other, str):
             return self.system == other and not self.units
         if isinstance(other, DisplayUnits):
@@ -459,7 +460,7 @@ class DisplayUnits:
                                                                          other.P_atm)
         return NotImplemented
 
-    def __hash__(self):
+    def __hash__(self) -> int:
         return hash((self.system, self.units, self.gauge, self.P_atm))
 
     def __str__(self) -> str:
@@ -480,14 +481,18 @@ class DisplayUnits:
         return None
 
 
-def display_spec(system) -> DisplayUnits:
+#: What a display function takes as the units to show values in: a base system's name or a DisplayUnits.
+Units = str | DisplayUnits
+
+
+def display_spec(system: Units) -> DisplayUnits:
     """A display-units spec from a spec or the name of a base system ("SI", "US")."""
     if isinstance(system, DisplayUnits):
         return system
     return DisplayUnits(str(system) if system in _SYSTEMS else "SI")
 
 
-def display_unit(si_unit: str, system) -> str:
+def display_unit(si_unit: str, system: Units) -> str:
     """The unit a report in ``system`` (SI, US or a :class:`DisplayUnits`) shows a value of SI unit
     ``si_unit`` in; ``si_unit`` may carry a flavour after '|' (see ``_FLAVOURS``)."""
     spec = display_spec(system)
@@ -525,7 +530,7 @@ def convert(value_si: float, si_unit: str, unit: str, difference: bool = False) 
     return value_si * scale + (0.0 if difference else offset)
 
 
-def say(value_si: float, si_unit: str, system, sig: int = 5, difference: bool = False) -> str:
+def say(value_si: float, si_unit: str, system: Units, sig: int = 5, difference: bool = False) -> str:
     """A value for a sentence (warnings, messages) in the job's units: '1014.5 psia', '−2.6 °F'."""
     v, u = display(value_si, si_unit, system, difference=difference)
     return f"{v:.{sig}g} {u}".strip()
@@ -539,7 +544,7 @@ def _temperature_difference_unit(spec: DisplayUnits) -> str:
     return "K" if spec.system == "SI" else "delta_degF"
 
 
-def display(value_si: float, si_unit: str, system, difference: bool = False,
+def display(value_si: float, si_unit: str, system: Units, difference: bool = False,
             absolute: bool = False) -> tuple[float, str]:
     """An SI value converted for a report in ``system`` (SI, US or a :class:`DisplayUnits`):
     (number, pretty unit).
@@ -555,18 +560,17 @@ def display(value_si: float, si_unit: str, system, difference: bool = False,
         unit = _temperature_difference_unit(spec)
         val = convert(value_si, "K", "K" if unit == "K" else "degR", difference=True)
         return val, "K" if unit == "K" else "Δ°F"
-    gauge = base == "Pa" and spec.gauge and spec.P_atm is not None and not difference and not absolute
-    val = convert(value_si - (spec.P_atm if gauge else 0.0), base, unit, difference=difference)
+    P_atm = spec.P_atm if spec.gauge and not difference and not absolute and base == "Pa" else None
+    gauge = P_atm is not None
+    val = convert(value_si - (P_atm or 0.0), base, unit, difference=difference)
     if base == "Pa":
         return val, _pressure_label(unit, gauge, difference)
-    if spec.unit_for(si_unit) is not None:
-        return val, spec.typeset_for(si_unit)
-    if spec.unit_for(base) == unit:
-        return val, spec.typeset_for(base)
-    return val, pretty_unit(unit)
+    own = spec.typeset_for(si_unit) if spec.unit_for(si_unit) is not None else (
+        spec.typeset_for(base) if spec.unit_for(base) == unit else None)
+    return val, own if own is not None else pretty_unit(unit)
 
 
-def display_label(si_unit: str, system, difference: bool = False, absolute: bool = False) -> str:
+def display_label(si_unit: str, system: Units, difference: bool = False, absolute: bool = False) -> str:
     """The typeset unit a value of SI unit ``si_unit`` is shown in (table headers, chart axes)."""
     return display(0.0, si_unit, system, difference=difference, absolute=absolute)[1]
 
@@ -626,7 +630,7 @@ def _pressure_label(unit: str, gauge: bool, difference: bool) -> str:
 class _Phrase:
     """Fills a template of a message with values in a unit system (see :func:`phrase`)."""
 
-    def __init__(self, system: str):
+    def __init__(self, system: Units):
         import string
 
         outer = self
@@ -649,7 +653,7 @@ class _Phrase:
         return format(value, spec)
 
 
-def phrase(template: str, values: dict[str, Any], system: str = "SI") -> str:
+def phrase(template: str, values: dict[str, Any], system: Units = "SI") -> str:
     """A message from a template and SI values, each shown in the job's unit system.
 
     A field ``{P:Pa}`` is the SI value ``P`` [Pa] shown in the system's pressure unit (kPa, psia), ``{T:K~4}``

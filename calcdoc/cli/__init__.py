@@ -13,7 +13,7 @@ from ..errors import EXIT_BAD_INPUT, EXIT_CHECK_FAILED, EXIT_INTERNAL, EXIT_OK, 
 from ..job import load
 from . import signing, tools
 from .batch import expand, run_batch
-from .runjob import print_job_warnings, output_groups, print_job_error, run_one
+from .runjob import output_groups, print_job_error, print_job_warnings, run_one
 from .verify import verify
 
 __all__ = ["EXIT_BAD_INPUT", "EXIT_CHECK_FAILED", "EXIT_INTERNAL", "EXIT_OK", "build_parser", "entry", "main"]

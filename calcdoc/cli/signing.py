@@ -75,14 +75,15 @@ def _box(pdf: bytes, role: str) -> tuple[int, tuple[float, float, float, float]]
     reader = PdfReader(io.BytesIO(pdf), strict=False)
     dests = reader.named_destinations
     cells = [dests.get(f"signature-{r}") for r in ROLES]
-    if any(c is None for c in cells):
+    corners = [(c, float(c.left), float(c.top)) for c in cells
+               if c is not None and c.left is not None and c.top is not None]
+    if len(corners) != len(ROLES):
         raise SignError("this PDF has no signature table of a calcdoc report (render it again with this version "
                         "of calcdoc)")
-    k = ROLES.index(role)
-    d = cells[k]
-    width = cells[1].left - cells[0].left
-    x0, top = float(d.left), float(d.top)
-    return reader.get_destination_page_number(d), (x0 + 1.5, top - _CELL_HEIGHT + 1.5, x0 + width - 1.5, top - 1.5)
+    d, x0, top = corners[ROLES.index(role)]
+    width = corners[1][1] - corners[0][1]
+    page = reader.get_destination_page_number(d)
+    return (page if page is not None else 0), (x0 + 1.5, top - _CELL_HEIGHT + 1.5, x0 + width - 1.5, top - 1.5)
 
 
 def _signer(key: str, cert: str | None, passphrase: str | None):
@@ -129,7 +130,8 @@ def sign(pdf_path: str, out_path: str, key: str, cert: str | None, role: str, pa
     signer = _signer(key, cert, passphrase)
     meta = signers.PdfSignatureMetadata(field_name=_field_name(role), md_algorithm="sha256",
                                         subfilter=fields.SigSeedSubFilter.PADES, reason=f"{role} (calcdoc sign)")
-    spec = fields.SigFieldSpec(_field_name(role), on_page=page, box=tuple(box))
+    # pyHanko types the box as ints; the cell's corners in points are kept as they are
+    spec = fields.SigFieldSpec(_field_name(role), on_page=page, box=box)  # type: ignore[arg-type]
     try:
         w = IncrementalPdfFileWriter(io.BytesIO(data), strict=False)
         out = io.BytesIO()

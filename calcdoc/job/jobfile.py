@@ -15,14 +15,14 @@ from pathlib import Path
 
 from .. import units
 from ..errors import JobError, Problem
-from .flowopts import FLOW_OPTION_KEYS, chain_problems, read_options
 from .displayunits import base_system, read_units
+from .flowopts import FLOW_OPTION_KEYS, chain_problems, read_options
 from .limits import Places, read_limits
 from .model import GasSpec, Input, Job, LegSpec, Site, StartSpec, TitleBlock, keys_of
 from .reader import Reader, describe as _describe
 from .solve import read_solve
-from .statics import static_problems, static_warnings
 from .source import MAX_BYTES as _MAX_BYTES, Node, decode, leaves, load as _load_yaml
+from .statics import static_problems, static_warnings
 from .sweep import read_sweep
 from .vesselfile import read_vessel, read_vessel_leg
 

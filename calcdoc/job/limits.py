@@ -10,8 +10,16 @@ from __future__ import annotations
 import difflib
 from collections.abc import Callable, Iterable
 
-from .model import LegSpec, LimitSpec
-from .quantities import Quantity, applies, applies_text, margin_example, percent_margin, quantity_named, quantity_problem
+from .model import Input, LegSpec, LimitSpec
+from .quantities import (
+    Quantity,
+    applies,
+    applies_text,
+    margin_example,
+    percent_margin,
+    quantity_named,
+    quantity_problem,
+)
 from .reader import Reader
 from .source import Node
 
@@ -112,7 +120,7 @@ def read_limits(r: Reader, items: list[Node], system: str, places: Places) -> tu
         at = names_of(m.get("at"), r.add)
         if q is not None:
             places.check(q, at, r.add)
-        bounds = {}
+        bounds: dict[str, Input | None] = {}
         for key in ("max", "min"):
             if key in m and q is not None:
                 bounds[key] = r.quantity(m[key], q.kind, positive=False, record=False)
@@ -145,7 +153,7 @@ def read_limits(r: Reader, items: list[Node], system: str, places: Places) -> tu
     return tuple(out)
 
 
-def _percent_zero(q: Quantity, bounds: dict, atm: float | None) -> float | None:
+def _percent_zero(q: Quantity, bounds: dict[str, Input | None], atm: float | None) -> float | None:
     """The zero a percent of this limit's quantity is measured from (see :class:`LimitSpec`)."""
     kind, _ = percent_margin(q)
     if kind == "percent":
@@ -155,7 +163,7 @@ def _percent_zero(q: Quantity, bounds: dict, atm: float | None) -> float | None:
     return None
 
 
-def _check_percent(r: Reader, node: Node, margin, q: Quantity, bounds: dict) -> None:
+def _check_percent(r: Reader, node: Node, margin: Input, q: Quantity, bounds: dict[str, Input | None]) -> None:
     """A percent margin only where the quantity has a true zero that the trade uses that way."""
     kind, why = percent_margin(q)
     if kind == "percent":

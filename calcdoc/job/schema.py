@@ -12,8 +12,8 @@ from dataclasses import MISSING, fields
 from typing import Any
 
 from . import jobfile, solve, sweep, vesselfile
-from .flowopts import INTERCOOLER_KEYS, STAGING_KEYS
 from .displayunits import UNIT_KEYS
+from .flowopts import INTERCOOLER_KEYS, STAGING_KEYS
 from .limits import LIMIT_KEYS
 from .model import GasSpec, Site, StartSpec, TitleBlock, keys_of
 from .quantities import ALIASES, QUANTITIES

@@ -4,10 +4,9 @@ ones (problems, exit 2), and intercooler drops that are large for their inlet an
 the history (warnings). Each names the key at fault by file:line:column, in the job's units."""
 from __future__ import annotations
 
-
 from .. import units
 from ..errors import Problem
-from .model import Input, Job
+from .model import Input, Job, LegSpec
 
 __all__ = ["INTERCOOLER_DROP_WARN", "static_problems", "static_warnings"]
 
@@ -52,7 +51,7 @@ def _stage_names(job: Job) -> list[Problem]:
             out.append(Problem(job.name, line, col, f"{leg.path}.name",
                                f"the leg name '{leg.name}' is also the name staging gives a stage of "
                                f"'{generated[leg.name]}'", "give the leg a name that does not end in ', stage N' or "
-                               f"', intercooler N' after the name of a staged leg"))
+                               "', intercooler N' after the name of a staged leg"))
     return out
 
 
@@ -101,15 +100,17 @@ def _intercooler_drops(job: Job) -> list[Problem]:
     out = []
     S = job.units
     legs = job.legs
-    P = job.start.pressure.si
+    P: float | None = job.start.pressure.si
     for k, leg in enumerate(legs):
         st = leg.options.staging
         if st is not None and st.drop.inp is not None and st.most_stages > 1:
             d = st.drop
+            inp = st.drop.inp
             P_end = leg.end["pressure"].si if "pressure" in leg.end else None
-            frac = d.fraction if d.fraction is not None else (d.absolute / P_end if P_end else None)
+            frac = d.fraction if d.fraction is not None else (
+                d.absolute / P_end if P_end and d.absolute is not None else None)
             if frac is not None and frac > INTERCOOLER_DROP_WARN:
-                out.append(job.problem_at(d.inp, f"the intercooler pressure drop {d.inp.entered} is more than "
+                out.append(job.problem_at(inp, f"the intercooler pressure drop {inp.entered} is more than "
                                           f"{INTERCOOLER_DROP_WARN * 100:.0f} % of its inlet pressure",
                                           "intercooler drops are usually a few percent of the interstage pressure "
                                           "(common practice); check the value and its unit"))
@@ -117,7 +118,7 @@ def _intercooler_drops(job: Job) -> list[Problem]:
             between = 0 < k < len(legs) - 1 and legs[k - 1].process == "compressor" and legs[k + 1].process == "compressor"
             d = leg.options.drop
             dP = P - d.outlet(P)
-            if between and dP > INTERCOOLER_DROP_WARN * P:
+            if between and d.inp is not None and dP > INTERCOOLER_DROP_WARN * P:
                 out.append(job.problem_at(d.inp, f"the intercooler pressure drop {d.inp.entered} "
                                           f"({units.say(dP, 'Pa', S, 4, difference=True)}) is more than "
                                           f"{INTERCOOLER_DROP_WARN * 100:.0f} % of its inlet pressure "
@@ -128,7 +129,7 @@ def _intercooler_drops(job: Job) -> list[Problem]:
     return out
 
 
-def _pressure_after(leg, P):
+def _pressure_after(leg: LegSpec, P: float | None) -> float | None:
     if leg.process in ("cooler", "heater"):
         return leg.options.drop.outlet(P) if P is not None else None
     if "pressure" in leg.end:

@@ -11,7 +11,7 @@ from .words import gas_text, say
 __all__ = ["diff_text", "summary"]
 
 
-def _show(value, unit: str, system: str, difference: bool = False) -> str:
+def _show(value, unit: str, system: units.Units, difference: bool = False) -> str:
     if value is None:
         return "—"
     if isinstance(value, str):
@@ -22,7 +22,7 @@ def _show(value, unit: str, system: str, difference: bool = False) -> str:
     return f"{v:.6g} {u}".strip()
 
 
-def diff_text(diff: Diff, system: str = "SI") -> str:
+def diff_text(diff: Diff, system: units.Units = "SI") -> str:
     """The comparison for a terminal."""
     lines = [f"Changes from {diff.old_label} to {diff.new_label}", ""]
     lines.append(f"Inputs changed ({len(diff.inputs)}):" if diff.inputs else "Inputs: none changed.")

@@ -3,7 +3,6 @@ are bad input with file:line; exit codes of `calcdoc run`."""
 from __future__ import annotations
 
 import json
-
 import math
 
 import pytest
