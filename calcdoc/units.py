@@ -16,6 +16,10 @@ from typing import Any
 
 __all__ = [
     "DIMENSIONS",
+    "DISPLAY_KINDS",
+    "DisplayUnits",
+    "Units",
+    "display_spec",
     "P_STD",
     "convert",
     "say",
@@ -421,12 +425,87 @@ _FLAVOURS = {
 }
 
 
-def display_unit(si_unit: str, system: str) -> str:
-    """The unit a report in ``system`` (SI or US) shows a value of SI unit ``si_unit`` in; ``si_unit`` may
-    carry a flavour after '|' (see ``_FLAVOURS``)."""
+#: Quantity kinds a job may give its own display unit for (``units: {system: SI, pressure: barg, ...}``):
+#: kind → the SI unit (with flavour) of the values it applies to.
+DISPLAY_KINDS: dict[str, str] = {
+    "pressure": "Pa", "temperature": "K", "volume": "m**3", "mass": "kg", "length": "m",
+    "specific_volume": "m**3/kg", "density": "kg/m**3", "specific_energy": "J/kg", "head": "J/kg|head",
+    "specific_entropy": "J/(kg*K)", "energy": "J", "entropy": "J/K", "power": "W", "duty": "W|heat",
+    "mass_flow": "kg/s", "molar_flow": "mol/s", "volume_flow": "m**3/s", "molar_mass": "kg/mol",
+}
+
+
+@dataclass(frozen=True, eq=False)
+class DisplayUnits:
+    """The units a report shows values in: a base system (SI or US) and the job's own unit for any
+    quantity kind (``units: {system: SI, pressure: barg, volume: L, power: kW}``).
+
+    ``units`` maps an SI unit (with flavour, see :data:`DISPLAY_KINDS`) to a pint unit and its typeset
+    form, (si unit, pint unit, typeset); ``gauge``
+    shows pressures above the site atmosphere ``P_atm`` [Pa] (barg, psig). Equal to the text of its
+    base system when it names no unit of its own ("SI" == DisplayUnits("SI")).
+    """
+
+    system: str = "SI"
+    units: tuple[tuple[str, str, str], ...] = ()
+    gauge: bool = False
+    P_atm: float | None = None
+    spelled: tuple[tuple[str, str], ...] = ()     # (kind, unit as the user wrote it), for the report
+
+    def __eq__(self, other: object) -> bool:
+        if isinstance(other, str):
+            return self.system == other and not self.units
+        if isinstance(other, DisplayUnits):
+            return (self.system, self.units, self.gauge, self.P_atm) == (other.system, other.units, other.gauge,
+                                                                         other.P_atm)
+        return NotImplemented
+
+    def __hash__(self) -> int:
+        return hash((self.system, self.units, self.gauge, self.P_atm))
+
+    def __str__(self) -> str:
+        return self.system
+
+    def unit_for(self, si_unit: str) -> str | None:
+        """The job's own display unit for values of this SI unit (with flavour), or None."""
+        for key, unit, _ in self.units:
+            if key == si_unit:
+                return unit
+        return None
+
+    def typeset_for(self, si_unit: str) -> str | None:
+        """The job's own display unit for values of this SI unit, typeset (L/s, m³/h), or None."""
+        for key, _, pretty in self.units:
+            if key == si_unit:
+                return pretty
+        return None
+
+
+#: What a display function takes as the units to show values in: a base system's name or a DisplayUnits.
+Units = str | DisplayUnits
+
+
+def display_spec(system: Units) -> DisplayUnits:
+    """A display-units spec from a spec or the name of a base system ("SI", "US")."""
+    if isinstance(system, DisplayUnits):
+        return system
+    return DisplayUnits(str(system) if system in _SYSTEMS else "SI")
+
+
+def display_unit(si_unit: str, system: Units) -> str:
+    """The unit a report in ``system`` (SI, US or a :class:`DisplayUnits`) shows a value of SI unit
+    ``si_unit`` in; ``si_unit`` may carry a flavour after '|' (see ``_FLAVOURS``)."""
+    spec = display_spec(system)
+    own = spec.unit_for(si_unit)
+    if own is not None:
+        return own
     if "|" in si_unit:
-        return _FLAVOURS.get((si_unit, system)) or display_unit(si_unit.split("|")[0], system)
-    return _SYSTEMS[system].get(si_unit, si_unit)
+        base = si_unit.split("|")[0]
+        own = spec.unit_for(base)
+        if own is not None and (si_unit, spec.system) not in _FLAVOURS:
+            return own
+        return _FLAVOURS.get((si_unit, spec.system)) or display_unit(base, spec)
+    return _SYSTEMS[spec.system].get(si_unit, si_unit)
 
 
 def pretty_unit(unit: str) -> str:
@@ -451,32 +530,107 @@ def convert(value_si: float, si_unit: str, unit: str, difference: bool = False) 
     return value_si * scale + (0.0 if difference else offset)
 
 
-def say(value_si: float, si_unit: str, system: str, sig: int = 5, difference: bool = False) -> str:
-    """A value for a sentence (warnings, messages) in the job's unit system: '1014.5 psia', '−2.6 °F'."""
+def say(value_si: float, si_unit: str, system: Units, sig: int = 5, difference: bool = False) -> str:
+    """A value for a sentence (warnings, messages) in the job's units: '1014.5 psia', '−2.6 °F'."""
     v, u = display(value_si, si_unit, system, difference=difference)
     return f"{v:.{sig}g} {u}".strip()
 
 
-def display(value_si: float, si_unit: str, system: str, difference: bool = False) -> tuple[float, str]:
-    """An SI value converted for a report in ``system``: (number, pretty unit).
+def _temperature_difference_unit(spec: DisplayUnits) -> str:
+    # a temperature difference is shown in K, or in Δ°F where the job shows °F; never in °R
+    own = spec.unit_for("K")
+    if own is not None:
+        return "delta_degF" if own in ("degF", "degR") else "K"
+    return "K" if spec.system == "SI" else "delta_degF"
 
-    Temperature differences (``difference=True``) are shown in K (SI) or °R (US), never in °C or °F;
-    pressure differences in kPa or psi (not psia: a difference is neither gauge nor absolute).
+
+def display(value_si: float, si_unit: str, system: Units, difference: bool = False,
+            absolute: bool = False) -> tuple[float, str]:
+    """An SI value converted for a report in ``system`` (SI, US or a :class:`DisplayUnits`):
+    (number, pretty unit).
+
+    Temperature differences (``difference=True``) are shown in K or Δ°F, never in °C or °R; pressure
+    differences in the pressure unit without a gauge or absolute mark (a difference is neither).
+    Pressures are shown gauge where the job asks for a gauge unit, unless ``absolute``.
     """
-    unit = display_unit(si_unit, system)
-    si_unit = si_unit.split("|")[0]
-    if difference and si_unit == "K":
-        unit = "K" if system == "SI" else "degR"
-    val = convert(value_si, si_unit, unit, difference=difference)
-    if difference and unit == "psi":
-        return val, "psi"
-    return val, pretty_unit(unit) if unit != "degR" else "°R"
+    spec = display_spec(system)
+    unit = display_unit(si_unit, spec)
+    base = si_unit.split("|")[0]
+    if difference and base == "K":
+        unit = _temperature_difference_unit(spec)
+        val = convert(value_si, "K", "K" if unit == "K" else "degR", difference=True)
+        return val, "K" if unit == "K" else "Δ°F"
+    P_atm = spec.P_atm if spec.gauge and not difference and not absolute and base == "Pa" else None
+    gauge = P_atm is not None
+    val = convert(value_si - (P_atm or 0.0), base, unit, difference=difference)
+    if base == "Pa":
+        return val, _pressure_label(unit, gauge, difference)
+    own = spec.typeset_for(si_unit) if spec.unit_for(si_unit) is not None else (
+        spec.typeset_for(base) if spec.unit_for(base) == unit else None)
+    return val, own if own is not None else pretty_unit(unit)
+
+
+def display_label(si_unit: str, system: Units, difference: bool = False, absolute: bool = False) -> str:
+    """The typeset unit a value of SI unit ``si_unit`` is shown in (table headers, chart axes)."""
+    return display(0.0, si_unit, system, difference=difference, absolute=absolute)[1]
+
+
+def typeset_unit(text: str) -> str:
+    """A unit as a user wrote it, typeset for the report: m3/h → m³/h, degC → °C."""
+    out = re.sub(r"(?<=[a-zA-Z])3(?![0-9])", "³", re.sub(r"(?<=[a-zA-Z])2(?![0-9])", "²", text.strip()))
+    return out.replace("delta_degF", "Δ°F").replace("degC", "°C").replace("degF", "°F").replace("degR", "°R").replace("*", "·")
+
+
+def display_unit_of(text: str, kind: str) -> tuple[str, bool]:
+    """A display unit as a job names it, checked against the quantity kind: (pint unit, gauge).
+
+    Raises :class:`UnitParseError` when the text is not a unit of that kind. A gauge unit (barg, psig)
+    is allowed for pressure only.
+    """
+    spelled = _spelling(text)
+    si = DISPLAY_KINDS[kind].split("|")[0]
+    gauge = False
+    if kind == "pressure":
+        gm = _GAUGE.match(spelled)
+        am = _ABS.match(spelled)
+        if gm and _PRESSURE_FOLD.get(gm.group("unit").casefold()):
+            gauge, spelled = True, _PRESSURE_FOLD[gm.group("unit").casefold()]
+        elif am and _PRESSURE_FOLD.get(am.group("unit").casefold()):
+            spelled = _PRESSURE_FOLD[am.group("unit").casefold()]
+        elif spelled.casefold() in _PRESSURE_FOLD:
+            spelled = _PRESSURE_FOLD[spelled.casefold()]
+    if spelled in _STANDARD_FLOW:
+        raise UnitParseError(f"'{text}' is a volume flow at standard conditions",
+                             "report actual volume flows in an actual unit (m3/h, L/s, ft3/min)")
+    unit = _pint_unit(spelled)
+    try:
+        registry().Quantity(1.0, unit).to(si)
+    except Exception:
+        close = suggest_unit(text, kind)
+        raise UnitParseError(f"'{text}' is not a unit of {kind.replace('_', ' ')}"
+                             + (f" (did you mean '{close}'?)" if close else ""),
+                             f"name a unit of {kind.replace('_', ' ')}, for example {_DISPLAY_EXAMPLES.get(kind, si)}") from None
+    return unit, gauge
+
+
+_DISPLAY_EXAMPLES = {"pressure": "bar, barg, kPa, psig", "temperature": "degC, degF, K", "volume": "L, m3, ft3",
+                     "power": "kW, MW, hp", "duty": "kW, MW, Btu/h", "volume_flow": "L/s, m3/h, ft3/min",
+                     "mass_flow": "kg/s, kg/h, t/h", "head": "kJ/kg, ft*lbf/lb",
+                     "specific_energy": "kJ/kg, Btu/lb", "energy": "kJ, MJ", "mass": "kg, t, lb"}
+
+
+def _pressure_label(unit: str, gauge: bool, difference: bool) -> str:
+    if difference:
+        return pretty_unit(unit) if unit != "psi" else "psi"
+    if gauge:
+        return {"bar": "barg", "psi": "psig", "kPa": "kPag", "MPa": "MPag"}.get(unit, pretty_unit(unit) + " (gauge)")
+    return {"bar": "bara", "psi": "psia"}.get(unit, pretty_unit(unit))
 
 
 class _Phrase:
     """Fills a template of a message with values in a unit system (see :func:`phrase`)."""
 
-    def __init__(self, system: str):
+    def __init__(self, system: Units):
         import string
 
         outer = self
@@ -499,11 +653,11 @@ class _Phrase:
         return format(value, spec)
 
 
-def phrase(template: str, values: dict[str, Any], system: str = "SI") -> str:
+def phrase(template: str, values: dict[str, Any], system: Units = "SI") -> str:
     """A message from a template and SI values, each shown in the job's unit system.
 
     A field ``{P:Pa}`` is the SI value ``P`` [Pa] shown in the system's pressure unit (kPa, psia), ``{T:K~4}``
-    a temperature to 4 significant figures (``~`` then the number of figures) (°C, °F), ``{dT:dK}`` a temperature difference (K, °R) and
+    a temperature to 4 significant figures (``~`` then the number of figures) (°C, °F), ``{dT:dK}`` a temperature difference (K, Δ°F) and
     ``{dP:dPa}`` a pressure difference; any other spec is Python's (``{eta:.3f}``), and text is put in as it is.
     """
     return _Phrase(system).formatter.format(template, **values)

@@ -8,14 +8,15 @@ import os
 import signal
 import sys
 import threading
+from pathlib import Path
 
 from .. import __version__, selftest
 from ..errors import EXIT_BAD_INPUT, EXIT_CHECK_FAILED, EXIT_INTERNAL, EXIT_OK, CalcdocError, JobError
 from ..job import load
 from ..report.output import output_folder
-from . import tools
+from . import signing, tools
 from .batch import expand, run_batch
-from .runjob import output_groups, print_job_error, run_one
+from .runjob import output_groups, print_job_error, print_job_warnings, run_one
 from .verify import RerunFailed, verify
 
 __all__ = ["EXIT_BAD_INPUT", "EXIT_CHECK_FAILED", "EXIT_INTERNAL", "EXIT_OK", "build_parser", "entry", "main"]
@@ -58,6 +59,23 @@ def build_parser() -> argparse.ArgumentParser:
     v.add_argument("report", metavar="REPORT.pdf")
     v.add_argument("job", nargs="?", metavar="JOB.yaml", help="the job file the report is claimed to come from")
     v.add_argument("--rerun", action="store_true", help="recompute the attached job and compare the results")
+    v.add_argument("--trust", action="append", metavar="CERT.pem", default=None,
+                   help="a certificate (PEM or DER) whose holder, or whose issued certificates, you trust as signers; "
+                        "repeat for several. Each signature is listed; an untrusted signer or a change after signing "
+                        "is a mismatch (exit 1)")
+    g = sub.add_parser("sign", help="sign a calc package PDF as prepared, checked or approved (PAdES)",
+                       description="Add a PAdES digital signature into the title block's field for the role, as an "
+                                   "incremental update: earlier signatures and the attached job file stay valid. Keys "
+                                   "and certificates as PEM files (OpenSSL), or one PKCS#12 file given as --key.",
+                       epilog="Exit codes: 0 signed; 2 bad input (unreadable PDF, key or certificate, role already "
+                              "signed).")
+    g.add_argument("pdf", metavar="PDF")
+    g.add_argument("--key", required=True, metavar="KEY.pem", help="private key (PEM), or a PKCS#12 file (.p12)")
+    g.add_argument("--cert", metavar="CERT.pem", help="the signer's certificate (PEM); not needed with PKCS#12")
+    g.add_argument("--role", required=True, choices=("prepared", "checked", "approved"))
+    g.add_argument("--out", required=True, metavar="SIGNED.pdf")
+    g.add_argument("--passphrase-env", metavar="VAR",
+                   help="name of an environment variable holding the key's passphrase (never on the command line)")
     d = sub.add_parser("diff", help="compare two revisions of a job: inputs changed, results and checks that moved",
                        description="Compute both revisions and list every input that changed and every result and "
                                    "check that moved, largest relative change first.")
@@ -93,6 +111,8 @@ def main(argv: list[str] | None = None) -> int:
         return _check(args)
     if args.command == "verify":
         return _verify(args)
+    if args.command == "sign":
+        return _sign(args)
     if args.command in ("diff", "schema", "new"):
         return getattr(tools, args.command)(args)
     if args.command == "selftest":
@@ -134,8 +154,10 @@ def _check(args) -> int:
     worst = EXIT_OK
     for path in args.jobs:
         try:
-            load(path)
-            print(f"{path}: OK")
+            job = load(path)
+            print_job_warnings(job)
+            print(f"{path}: OK" + (f" ({len(job.warnings)} warning{'s' if len(job.warnings) > 1 else ''})"
+                                   if job.warnings else ""))
         except JobError as exc:
             print_job_error(exc)
             worst = EXIT_BAD_INPUT
@@ -146,9 +168,25 @@ def _check(args) -> int:
     return worst
 
 
+def _sign(args) -> int:
+    passphrase = os.environ.get(args.passphrase_env) if args.passphrase_env else None
+    if args.passphrase_env and passphrase is None:
+        print(f"error: the environment variable {args.passphrase_env} is not set", file=sys.stderr)
+        return EXIT_BAD_INPUT
+    try:
+        out = signing.sign(args.pdf, args.out, args.key, args.cert, args.role, passphrase)
+    except CalcdocError as exc:
+        print(f"error: {exc}", file=sys.stderr)
+        return EXIT_BAD_INPUT
+    print(f"signed as {args.role}: wrote {out}")
+    return EXIT_OK
+
+
 def _verify(args) -> int:
     try:
         result = verify(args.report, args.job, rerun=args.rerun)
+        for f in signing.read_signatures(Path(args.report).read_bytes(), args.trust):
+            result.add(f.ok, f.text())
     except RerunFailed as exc:   # --rerun answers as 'calcdoc run' of the attached job would
         for line in str(exc).splitlines():
             print(f"error: {line}", file=sys.stderr)

@@ -24,7 +24,7 @@ from ..job.source import MAX_BYTES, decode, load as read_yaml
 from ..report.output import WRITTEN, output_paths, safe_stem, write
 from ..report.terminal import summary
 
-__all__ = ["output_groups", "print_job_error", "run_one"]
+__all__ = ["output_groups", "print_job_error", "print_job_warnings", "run_one"]
 
 
 def print_job_error(exc: JobError) -> None:
@@ -34,6 +34,12 @@ def print_job_error(exc: JobError) -> None:
         print(f"error: {p}", file=sys.stderr)
     if n > 1:
         print(f"{n} problems found.", file=sys.stderr)
+
+
+def print_job_warnings(job) -> None:
+    """What the job file shows without computing that does not stop a run, one line each, on stderr."""
+    for p in job.warnings:
+        print(f"warning: {p}", file=sys.stderr)
 
 
 def output_groups(paths: list[str]) -> list[list[int]]:
@@ -60,6 +66,8 @@ def run_one(path: str, args, info: dict | None = None) -> int:
     """Compute one job and write its outputs; returns the exit code (messages on stderr)."""
     try:
         job = load(path)
+        if not getattr(args, "quiet", False):
+            print_job_warnings(job)
         results = run(job)
         if getattr(args, "changes_since", None):
             old = load(args.changes_since)

@@ -31,6 +31,10 @@ def diff(args) -> int:
             old, new = load_revision(args.old, args.against), load(args.old)
         else:
             old, new = load(args.old), load(args.new)
+        if old.calc.number != new.calc.number:
+            print(f"warning: {args.old} is calc {old.calc.number} and {args.new or args.old} is calc "
+                  f"{new.calc.number}: these are different calculations, not two revisions of one; the "
+                  "comparison below may mean nothing", file=sys.stderr)
         d = compare(old, new, run(old), run(new))
     except JobError as exc:
         print_job_error(exc)

@@ -149,11 +149,14 @@ def judge(spec: LimitSpec, kind: str, where: str, value: Calc) -> Check:
     assert lim is not None, "a bound is judged only where the limit gives it"
     x = value.value
     margin = (lim.si - x) if kind == "max" else (x - lim.si)
-    pct = margin / abs(x) * 100.0 if x != 0 else float("nan")
+    # a percent only of a quantity with a true zero (job.quantities.PERCENT_MARGIN): of the computed value,
+    # or of the gauge pressure for a pressure limit written as gauge
+    base = abs(x - spec.percent_zero) if spec.percent_zero is not None else 0.0
+    pct = margin / base * 100.0 if base != 0 else float("nan")
     req, req_text = 0.0, ""
     if spec.margin is not None:
         req_text = spec.margin.entered
-        req = spec.margin.si * abs(x) if spec.margin.percent else spec.margin.si
+        req = spec.margin.si * base if spec.margin.percent else spec.margin.si
     tol = REL_TOL * max(abs(lim.si), abs(x))
     ok = margin >= req - tol
     return Check(spec.name, spec.quantity.name, where, value, lim.si, kind, spec.quantity.unit, margin, pct, req,

@@ -16,6 +16,7 @@ from pathlib import Path
 from .. import units
 from ..errors import Finding, JobError, Problem
 from ..physics.fluids import closest_fluids, is_mixture_string, known_fluid
+from .displayunits import base_system, read_units
 from .files import read_regular
 from .flowopts import FLOW_OPTION_KEYS, chain_problems, read_options
 from .limits import Places, read_limits
@@ -24,6 +25,7 @@ from .model import GasSpec, Input, Job, LegSpec, Site, StartSpec, TitleBlock, ke
 from .reader import Reader, describe as _describe
 from .solve import read_solve
 from .source import MAX_BYTES as _MAX_BYTES, Node, decode, leaves, load as _load_yaml
+from .statics import static_problems, static_warnings
 from .sweep import read_sweep
 from .vesselfile import read_vessel, read_vessel_leg
 
@@ -85,9 +87,10 @@ class _Validator(Reader):
                 self.add(ver, f"schema version {ver.value!r} is not supported", f"write 'calcdoc: {SCHEMA_VERSION}'")
         calc = self.title_block(top.get("calc"))
         system = self.enum(top.get("system"), ("closed", "flow", "vessel"), default="closed")
-        unit_system = self.enum(top.get("units"), ("SI", "US"), default="SI")
-        self.system = unit_system or "SI"
+        self.system = base_system(top.get("units"))     # for values in messages until the units are read
         site = self.site(top.get("site"))
+        unit_system = read_units(self, top.get("units"), site.P_atm)
+        self.system = unit_system or self.system
         gas = self.gas(top.get("gas"))
         vessel = None
         if system == "vessel":
@@ -125,6 +128,9 @@ class _Validator(Reader):
                                   where=dict(self.where))
         if job.system == "flow" and not self.problems:
             self.problems += chain_problems(job)
+        if not self.problems:
+            self.problems += static_problems(job)
+            job = dataclasses.replace(job, warnings=tuple(static_warnings(job)))
         return job
 
     def _locate(self, path: str) -> tuple[int, int]:

@@ -10,8 +10,16 @@ from __future__ import annotations
 import difflib
 from collections.abc import Callable, Iterable
 
-from .model import LegSpec, LimitSpec
-from .quantities import Quantity, applies, applies_text, quantity_named, quantity_problem
+from .model import Input, LegSpec, LimitSpec
+from .quantities import (
+    Quantity,
+    applies,
+    applies_text,
+    margin_example,
+    percent_margin,
+    quantity_named,
+    quantity_problem,
+)
 from .reader import Reader
 from .source import Node
 
@@ -112,7 +120,7 @@ def read_limits(r: Reader, items: list[Node], system: str, places: Places) -> tu
         at = names_of(m.get("at"), r.add)
         if q is not None:
             places.check(q, at, r.add)
-        bounds = {}
+        bounds: dict[str, Input | None] = {}
         for key in ("max", "min"):
             if key in m and q is not None:
                 bounds[key] = r.quantity(m[key], q.kind, positive=False, record=False)
@@ -126,6 +134,8 @@ def read_limits(r: Reader, items: list[Node], system: str, places: Places) -> tu
                                 valid="write a value with its unit or a percentage of the computed value, for example '10 %'")
             if margin is not None and margin.si < 0:
                 r.add(m["margin"], f"a required margin of {margin.entered} is negative", "give a margin of zero or more")
+            if margin is not None and margin.percent:
+                _check_percent(r, m["margin"], margin, q, bounds)
         basis = r.text(m.get("basis"), required=True, what="basis")
         name = r.text(m.get("name"), required=True, what="limit name") if "name" in m else ""
         if q is not None and not name:
@@ -138,5 +148,32 @@ def read_limits(r: Reader, items: list[Node], system: str, places: Places) -> tu
         if len(r.problems) > before or q is None:
             continue
         out.append(LimitSpec(name, q, tuple(n for n, _ in at), bounds.get("max"), bounds.get("min"), margin, basis,
-                             item.path, *item.where, at_where=m["at"].where if "at" in m else item.where))
+                             item.path, *item.where, at_where=m["at"].where if "at" in m else item.where,
+                             percent_zero=_percent_zero(q, bounds, getattr(r, "atm", None))))
     return tuple(out)
+
+
+def _percent_zero(q: Quantity, bounds: dict[str, Input | None], atm: float | None) -> float | None:
+    """The zero a percent of this limit's quantity is measured from (see :class:`LimitSpec`)."""
+    kind, _ = percent_margin(q)
+    if kind == "percent":
+        return 0.0
+    if kind == "gauge" and atm is not None and bounds and all(b.gauge for b in bounds.values() if b is not None):
+        return atm
+    return None
+
+
+def _check_percent(r: Reader, node: Node, margin: Input, q: Quantity, bounds: dict[str, Input | None]) -> None:
+    """A percent margin only where the quantity has a true zero that the trade uses that way."""
+    kind, why = percent_margin(q)
+    if kind == "percent":
+        return
+    if kind == "gauge" and bounds and all(b is not None and b.gauge for b in bounds.values()):
+        return
+    if kind == "gauge":
+        r.add(node, f"a percent margin ({margin.entered}) on an absolute pressure limit: {why}",
+              f"write the limit as a gauge pressure (for example max: 10 barg) so the margin is a percent of the "
+              f"gauge pressure, or give an absolute margin, for example margin: {margin_example(q)}")
+        return
+    r.add(node, f"a percent margin ({margin.entered}) on {q.title}: {why}",
+          f"give an absolute margin in the quantity's units, for example margin: {margin_example(q)}")

@@ -12,7 +12,7 @@ from collections.abc import Callable, Iterable
 from typing import Any
 
 from ..errors import Finding, PhysicsError, Problem
-from ..units import phrase, say
+from ..units import Units, phrase, say
 from .model import Input, Job
 
 __all__ = ["MESSAGES", "SPOKEN", "found_text", "problem", "valid_text", "worded"]
@@ -139,10 +139,10 @@ MESSAGES: dict[str, tuple[str, str]] = {
                      "end the leg at a pressure above the back pressure"),
 }
 
-_Speaker = Callable[[dict[str, Any], str], tuple[str, str]]
+_Speaker = Callable[[dict[str, Any], Units], tuple[str, str]]
 
 #: Messages whose words depend on their values beyond filling a template: code → (values, system) → (found, valid).
-SPOKEN: dict[str, Callable[[dict[str, Any], str], tuple[str, str]]] = {}
+SPOKEN: dict[str, Callable[[dict[str, Any], Units], tuple[str, str]]] = {}
 
 
 def _spoken(code: str) -> Callable[[_Speaker], _Speaker]:
@@ -160,7 +160,7 @@ _COMMON_FLUIDS = "use a CoolProp fluid name such as Nitrogen, Air, CarbonDioxide
 
 
 @_spoken("fluid.unknown")
-def _unknown_fluid(v: dict[str, Any], system: str) -> tuple[str, str]:
+def _unknown_fluid(v: dict[str, Any], system: Units) -> tuple[str, str]:
     hint = f"did you mean {' or '.join(repr(c) for c in v['close'])}? " if v["close"] else ""
     return f"'{v['name']}' is not a fluid the equation-of-state library (CoolProp) knows", hint + _COMMON_FLUIDS
 
@@ -173,56 +173,56 @@ def _mixture_string(v: dict[str, Any], system: str) -> tuple[str, str]:
 
 
 @_spoken("fluid.unknown_component")
-def _unknown_component(v: dict[str, Any], system: str) -> tuple[str, str]:
+def _unknown_component(v: dict[str, Any], system: Units) -> tuple[str, str]:
     hint = f"did you mean {' or '.join(repr(c) for c in v['close'])}? " if v["close"] else ""
     return (f"'{v['name']}' is not a mixture component the equation-of-state library (CoolProp) knows",
             hint + _COMMON_FLUIDS)
 
 
 @_spoken("gas.not_made")
-def _gas_not_made(v: dict[str, Any], system: str) -> tuple[str, str]:
+def _gas_not_made(v: dict[str, Any], system: Units) -> tuple[str, str]:
     hint = f"did you mean {' or '.join(repr(c) for c in v['close'])}? " if v["close"] else ""
     return found_text(v["error"], system), hint + _COMMON_FLUIDS
 
 
 @_spoken("limit.partial_total")
-def _partial_total(v: dict[str, Any], system: str) -> tuple[str, str]:
+def _partial_total(v: dict[str, Any], system: Units) -> tuple[str, str]:
     return (f"the {v['title']} is partial (no mechanical efficiency for {', '.join(v['missing'])}, not included)",
             "give every machine a mechanical_efficiency, or limit each leg's shaft_power")
 
 
 @_spoken("limit.no_leg_on")
-def _no_leg_on(v: dict[str, Any], system: str) -> tuple[str, str]:
+def _no_leg_on(v: dict[str, Any], system: Units) -> tuple[str, str]:
     return (f"no leg of this job has {v['quantity']} (it applies to {' and '.join(p + ' legs' for p in v['on'])})",
             f"legs and their processes: {'; '.join(f'{n}: {p}' for n, p in v['legs'])}")
 
 
 @_spoken("limit.no_leg")
-def _no_leg(v: dict[str, Any], system: str) -> tuple[str, str]:
+def _no_leg(v: dict[str, Any], system: Units) -> tuple[str, str]:
     legs = "; ".join(f"{n}: {', '.join(q) or 'none'}" for n, q in v["legs"]) or "no legs"
     return f"no leg of this job has {v['quantity']}", f"legs and their quantities: {legs}"
 
 
 @_spoken("limit.leg_lacks")
-def _leg_lacks(v: dict[str, Any], system: str) -> tuple[str, str]:
+def _leg_lacks(v: dict[str, Any], system: Units) -> tuple[str, str]:
     return (f"leg '{v['leg']}' ({v['process']}) has no {v['quantity']}",
             f"its quantities are: {', '.join(v['quantities']) or 'none'}; name a leg that has {v['quantity']}")
 
 
 @_spoken("limit.leg_quantity_at_state")
-def _leg_quantity_at_state(v: dict[str, Any], system: str) -> tuple[str, str]:
+def _leg_quantity_at_state(v: dict[str, Any], system: Units) -> tuple[str, str]:
     return (f"{v['quantity']} is a quantity of a leg, but '{v['label']}' is a state label",
             f"name a leg: {_names(v['legs'])}")
 
 
 @_spoken("limit.no_place")
-def _no_place(v: dict[str, Any], system: str) -> tuple[str, str]:
+def _no_place(v: dict[str, Any], system: Units) -> tuple[str, str]:
     return (f"this job has no leg or state named '{v['name']}' that has {v['quantity']}",
             f"legs: {_names(v['legs'])}; states: {', '.join(v['states'])}")
 
 
 @_spoken("limit.negative")
-def _negative(v: dict[str, Any], system: str) -> tuple[str, str]:
+def _negative(v: dict[str, Any], system: Units) -> tuple[str, str]:
     conv = ("work done BY the gas and heat added TO the gas are positive" if v["closed"] else
             "shaft work and heat INTO the gas are positive")
     entered = f" {v['bound']} {v['entered']}" if v["bound"] else ""
@@ -239,7 +239,7 @@ def _negative(v: dict[str, Any], system: str) -> tuple[str, str]:
 _STATE_UNITS = {"P": "Pa", "T": "K", "v": "m**3/kg", "s": "J/(kg*K)", "h": "J/kg", "u": "J/kg", "rho": "kg/m**3"}
 
 
-def found_text(f: Finding | PhysicsError, system: str = "SI") -> str:
+def found_text(f: Finding | PhysicsError, system: Units = "SI") -> str:
     """What a finding (or a physics error) says, in the unit system."""
     if isinstance(f, PhysicsError):
         f = f.finding
@@ -249,7 +249,7 @@ def found_text(f: Finding | PhysicsError, system: str = "SI") -> str:
     return phrase(found, worded(f.values, system), system)
 
 
-def valid_text(f: Finding | PhysicsError, system: str = "SI") -> str:
+def valid_text(f: Finding | PhysicsError, system: Units = "SI") -> str:
     """What would be valid instead, in the unit system (``"=error"``: what is valid for the nested error)."""
     if isinstance(f, PhysicsError):
         f = f.finding
@@ -261,12 +261,12 @@ def valid_text(f: Finding | PhysicsError, system: str = "SI") -> str:
     return phrase(valid, worded(f.values, system), system)
 
 
-def worded(values: dict[str, Any], system: str) -> dict[str, Any]:
+def worded(values: dict[str, Any], system: Units) -> dict[str, Any]:
     """The values of a finding ready for a template: nested findings and states put in words."""
     return {k: _value(v, system) for k, v in values.items()}
 
 
-def _value(v: Any, system: str) -> Any:
+def _value(v: Any, system: Units) -> Any:
     if isinstance(v, (Finding, PhysicsError)):
         return found_text(v, system)
     if isinstance(v, dict):   # the properties a state is given by: "P = 101.3 kPa, T = 25 °C"

@@ -13,6 +13,7 @@ from dataclasses import MISSING, dataclass, field, fields
 from typing import Any
 
 from ..errors import Problem
+from ..units import DisplayUnits
 from .quantities import Quantity
 
 __all__ = ["Drop", "FollowSpec", "GasSpec", "Input", "Job", "LegOptions", "LegSpec", "LimitSpec", "Site",
@@ -227,6 +228,9 @@ class LimitSpec:
     line: int
     col: int
     at_where: tuple[int, int] = (0, 0)
+    #: the zero a percent of this quantity is measured from [SI]: 0 for a quantity with a true zero, the
+    #: site atmosphere for a pressure limit written as gauge, None where a percent means nothing
+    percent_zero: float | None = 0.0
 
 
 @dataclass(frozen=True)
@@ -280,7 +284,7 @@ class Job:
     data: bytes                     # the job file, byte for byte
     sha256: str
     calc: TitleBlock
-    units: str                      # report unit system: "SI" or "US"
+    units: DisplayUnits             # report units: base system "SI" or "US" and the job's own units
     site: Site
     gas: GasSpec
     system: str                     # "closed", "flow" or "vessel"
@@ -294,6 +298,7 @@ class Job:
     sweep: SweepSpec | None = None
     vessel: VesselSpec | None = None
     solve: SolveSpec | None = None
+    warnings: tuple[Problem, ...] = ()   # what the job file shows without computing that does not stop a run
 
     @property
     def text(self) -> str:

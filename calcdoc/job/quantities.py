@@ -10,8 +10,8 @@ from dataclasses import dataclass
 
 from .. import units
 
-__all__ = ["ALIASES", "QUANTITIES", "REVERSIBLE", "SIGNED", "Quantity", "applies", "applies_text", "place_text",
-           "quantity_named", "quantity_problem", "series_name"]
+__all__ = ["ALIASES", "PERCENT_MARGIN", "QUANTITIES", "REVERSIBLE", "SIGNED", "Quantity", "applies", "applies_text",
+           "margin_example", "percent_margin", "place_text", "quantity_named", "quantity_problem", "series_name"]
 
 BOTH = ("closed", "flow", "vessel")     # state properties and leg ratios exist in every system
 
@@ -192,3 +192,68 @@ def place_text(kind: str, leg: str = "", label: str = "", count: int = 0) -> str
 def series_name(title: str, place: str) -> str:
     """The name of a followed result of a sweep."""
     return f"{title} at {place}"
+
+
+# -- percent margins ---------------------------------------------------------------------------
+#: Which quantities a limit may give a percent margin on, and why. A percent is a fraction of a value
+#: measured from a true zero; it is allowed where the quantity has one and the trade states margins that
+#: way, refused where the zero is arbitrary (°C, enthalpy) or the trade means something else.
+#: (kind, reason): kind "percent" allowed, "gauge" allowed as a percent of the gauge pressure only,
+#: "refused" not allowed (the reason says what to give instead).
+_POWER = ("percent", "a power or duty has a true zero (no energy flow); driver and cooler ratings are stated "
+                     "with a percent margin over it (common practice)")
+_HEAD = ("percent", "a head or specific work has a true zero (no work per unit mass); head margins are stated in "
+                    "percent (common practice)")
+_WORK = ("percent", "work and heat of a leg have a true zero (none exchanged); a percent of them is meaningful "
+                    "(common practice)")
+_FLOW = ("percent", "a flow has a true zero (no flow); flow margins are stated in percent (common practice)")
+_REF_ZERO = ("refused", "its zero is the reference state of the equation of state, chosen by convention: a percent "
+                        "of it means nothing")
+_NUMBER = ("refused", "a percent of a ratio, exponent or efficiency is easily read as percentage points; give the "
+                      "margin as a plain number")
+_TEMPERATURE = ("refused", "a temperature in °C or °F has no true zero, and a percent of the absolute temperature is "
+                           "not how the trade states a temperature margin (common practice)")
+PERCENT_MARGIN: dict[str, tuple[str, str]] = {
+    "pressure": ("gauge", "the trade states a pressure margin as a percent of the gauge pressure, whose zero is the "
+                          "atmosphere (common practice); a percent of an absolute pressure is not what is meant"),
+    "temperature": _TEMPERATURE,
+    "discharge_temperature": _TEMPERATURE,
+    "specific_volume": ("refused", "the trade states no percent margin on a specific volume; give it in units"),
+    "density": ("refused", "the trade states no percent margin on a density; give it in units"),
+    "internal_energy": _REF_ZERO, "enthalpy": _REF_ZERO, "entropy": _REF_ZERO,
+    "Z": _NUMBER, "pressure_ratio": _NUMBER, "volume_ratio": _NUMBER, "n": _NUMBER, "eta_p": _NUMBER,
+    "eta_s": _NUMBER,
+    "volume": ("refused", "the trade states no percent margin on the volume of a fixed mass; give it in units"),
+    "volume_flow": _FLOW,
+    "W_by_gas": _WORK, "Q_to_gas": _WORK, "work_on_gas": _WORK, "heat_from_gas": _WORK,
+    "dU": ("refused", "the trade states no percent margin on a change of internal energy; give it in units"),
+    "dH": ("refused", "the trade states no percent margin on a change of enthalpy; give it in units"),
+    "dS": ("refused", "the trade states no percent margin on a change of entropy; give it in units"),
+    "work_in": _HEAD, "head": _HEAD, "head_isentropic": _HEAD,
+    "duty": _POWER, "power": _POWER, "shaft_power": _POWER, "cooling_duty": _POWER, "heating_duty": _POWER,
+    "power_output": _POWER, "shaft_power_output": _POWER, "total_power": _POWER, "total_power_output": _POWER,
+    "total_cooling_duty": _POWER, "total_heating_duty": _POWER, "total_shaft_power": _POWER,
+    "total_shaft_power_output": _POWER,
+    # vessel legs
+    "duration": ("percent", "a duration has a true zero (no time); a margin on a fill or blowdown time is stated in "
+                            "percent (common practice)"),
+    "mass_change": ("refused", "the trade states no percent margin on a change of mass; give it in units"),
+    "volume_change": ("refused", "the trade states no percent margin on a change of volume; give it in units"),
+    "max_temperature": _TEMPERATURE, "min_temperature": _TEMPERATURE,
+    "max_wall_temperature": _TEMPERATURE, "min_wall_temperature": _TEMPERATURE,
+}
+
+_MARGIN_EXAMPLE = {"temperature": "10 K", "pressure": "0.5 bar", "dimensionless": "0.02", "specific_energy": "5 kJ/kg",
+                   "specific_volume": "0.01 m3/kg", "density": "1 kg/m3", "volume": "0.01 m3", "energy": "1 kJ",
+                   "entropy": "0.1 kJ/K", "specific_entropy": "0.01 kJ/(kg*K)", "power": "50 kW",
+                   "volume_flow": "10 m3/h", "time": "10 s", "mass": "0.1 kg"}
+
+
+def percent_margin(q: Quantity) -> tuple[str, str]:
+    """Whether a limit on ``q`` may give its margin in percent: ("percent" | "gauge" | "refused", reason)."""
+    return PERCENT_MARGIN[q.name]
+
+
+def margin_example(q: Quantity) -> str:
+    """An absolute margin of the quantity's kind, for a message (``10 K``, ``0.5 bar``)."""
+    return _MARGIN_EXAMPLE.get(q.kind, "a value in the quantity's units")

@@ -51,7 +51,7 @@ class Reader:
         self.inputs: list[Input] = []
         self.where: dict[str, tuple[int, int]] = {}
         self.atm = atmosphere
-        self.system = "SI"         # the job's unit system, for values in messages
+        self.system: units.Units = "SI"   # the job's units, for values in messages
         self.hints = required_hints or {}
 
     def add(self, node: Node, found: str, valid: str = "", path: str | None = None) -> None:

@@ -12,6 +12,7 @@ from dataclasses import MISSING, fields
 from typing import Any
 
 from . import jobfile, solve, sweep, vesselfile
+from .displayunits import UNIT_KEYS
 from .flowopts import INTERCOOLER_KEYS, STAGING_KEYS
 from .limits import LIMIT_KEYS
 from .model import GasSpec, Site, StartSpec, TitleBlock, keys_of
@@ -105,7 +106,12 @@ def job_schema() -> dict[str, Any]:
     props = {
         "calcdoc": {"const": jobfile.SCHEMA_VERSION, "description": "job-file schema version"},
         "calc": _obj(keys_of(TitleBlock), _model_props(TitleBlock), _required(TitleBlock), "the title block"),
-        "units": {"enum": ["SI", "US"]},
+        "units": {"oneOf": [
+            {"enum": ["SI", "US"]},
+            _obj(UNIT_KEYS, {"system": {"enum": ["SI", "US"]},
+                             **{k: {"type": "string", "description": f"display unit of {k.replace('_', ' ')}"}
+                                for k in UNIT_KEYS if k != "system"}}, (), "the report's units per quantity kind"),
+        ]},
         "site": _obj(keys_of(Site), _model_props(Site)),
         "gas": _obj(keys_of(GasSpec), _model_props(GasSpec), _required(GasSpec)),
         "system": {"enum": ["closed", "flow", "vessel"]},

@@ -29,7 +29,7 @@ calc:                            # the title block of the calc package
   history:
     - {{revision: A, date: 2026-01-01, description: Issued for review}}
 
-units: SI                        # report units: SI or US
+units: SI                        # report units: SI or US, or per quantity: {{system: SI, pressure: barg, power: kW}}
 site:
   elevation: 0 m                 # or atmosphere: 101.325 kPa (measured barometric pressure)
 

@@ -65,11 +65,11 @@ def _svg(fig) -> str:
 
 
 def _conv(values, si_unit, system, difference=False):
-    return [units.display(x, si_unit, system, difference=difference)[0] for x in values]
+    return [units.display(x, si_unit, system, difference=difference, absolute=True)[0] for x in values]
 
 
 def _label(name, si_unit, system):
-    return f"{name} [{units.pretty_unit(units.display_unit(si_unit, system))}]"
+    return f"{name} [{units.display_label(si_unit, system, absolute=True)}]"
 
 
 def diagrams(results, system: str) -> dict[str, str]:
@@ -179,8 +179,8 @@ def _limits(ax, xs, ys, dome_x=None, dome_y=None):
 def _mark_states(ax, results, system, x, y):
     unit = {"v": "m**3/kg", "P": "Pa", "s": "J/(kg*K)", "T": "K"}
     for rec in results.states:
-        xv = units.display(getattr(rec.state, x), unit[x], system)[0]
-        yv = units.display(getattr(rec.state, y), unit[y], system)[0]
+        xv = units.display(getattr(rec.state, x), unit[x], system, absolute=True)[0]
+        yv = units.display(getattr(rec.state, y), unit[y], system, absolute=True)[0]
         ax.plot([xv], [yv], "o", ms=3.5, color="#111111", zorder=5)
         ax.annotate(rec.label, (xv, yv), textcoords="offset points", xytext=(4, 4), fontsize=7.5)
 
@@ -200,7 +200,7 @@ def sweep_chart(sweep: dict, system: str) -> str:
         pts = [(xv, yv) for xv, yv in zip(x, s["values"], strict=True) if yv is not None]
         y = _conv([p[1] for p in pts], s["unit"], system) if s["unit"] else [p[1] for p in pts]
         ax.plot([p[0] for p in pts], y, "o-", ms=3, color=PALETTE[k % len(PALETTE)])
-        ax.set_ylabel(units.pretty_unit(units.display_unit(s["unit"], system)) if s["unit"] else "", fontsize=7.5)
+        ax.set_ylabel(units.display_label(s["unit"], system) if s["unit"] else "", fontsize=7.5)
         ax.set_title(_clip(s["name"], 90), fontsize=8, loc="left")
     axes[-1][0].set_xlabel(_label(sweep["input"], unit, system) if unit else sweep["input"])
     fig.tight_layout()

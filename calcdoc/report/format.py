@@ -20,8 +20,23 @@ _SUBST_UNITS = {"Pa": "kPa", "J": "kJ", "J/kg": "kJ/kg", "J/(kg*K)": "kJ/(kg*K)"
 
 
 def num(x: float | None, sig: int = 5, strip: bool = False) -> Markup:
-    """A number for the report, to ``sig`` significant figures."""
-    return Markup(_num(x, sig, strip))
+    """A number for the report: a number with thousands separators is kept on one line."""
+    text = _num(x, sig, strip)
+    return Markup(f'<span class="nw">{text}</span>' if "\u2009" in text else text)
+
+
+def refs(numbers) -> str:
+    """Reference numbers as cited: runs of three or more joined as a range ([3, 9–14])."""
+    nums = sorted(set(numbers))
+    out: list[str] = []
+    i = 0
+    while i < len(nums):
+        j = i
+        while j + 1 < len(nums) and nums[j + 1] == nums[j] + 1:
+            j += 1
+        out.append(f"{nums[i]}–{nums[j]}" if j - i >= 2 else ", ".join(str(n) for n in nums[i:j + 1]))
+        i = j + 1
+    return ", ".join(out)
 
 
 def css_string(text: str) -> Markup:
@@ -54,29 +69,41 @@ def _num(x: float | None, sig: int = 5, strip: bool = False) -> str:
     return f"{mant.replace('-', '−')}×10<sup>{int(exp)}</sup>"
 
 
-def qty(value: float | None, si_unit: str, system: str, sig: int = 5, difference: bool = False,
-        strip: bool = False) -> Markup:
-    """A value with its unit in the report's unit system."""
+def qty(value: float | None, si_unit: str, system, sig: int = 5, difference: bool = False,
+        strip: bool = False, absolute: bool = False) -> Markup:
+    """A value with its unit in the job's display units (``absolute``: a pressure shown absolute even
+    where the job shows gauge)."""
     if value is None or (isinstance(value, float) and math.isnan(value)):
         return Markup("—")
-    v, u = units.display(value, si_unit, system, difference=difference)
-    return Markup(num(v, sig, strip) + ("\u202f" + u if u else ""))
+    v, u = units.display(value, si_unit, system, difference=difference, absolute=absolute)
+    return Markup(num(settled(v, value, si_unit), sig, strip) + ("\u202f" + u if u else ""))
 
 
-def unit_of(si_unit: str, system: str, difference: bool = False) -> str:
-    """The display unit of an SI unit in the report's unit system."""
-    if difference and si_unit.split("|")[0] == "K":
-        return "K" if system == "SI" else "°R"
-    return units.pretty_unit(units.display_unit(si_unit, system))
+def unit_of(si_unit: str, system, difference: bool = False, absolute: bool = False) -> str:
+    """The typeset unit values of this SI unit are shown in (table headers)."""
+    return units.display_label(si_unit, system, difference=difference, absolute=absolute)
 
 
-def value_in(value: float | None, si_unit: str, system: str, sig: int = 5, difference: bool = False) -> Markup:
-    """Only the number of a value in the report's unit system (for table cells under a unit header);
+def value_in(value: float | None, si_unit: str, system, sig: int = 5, difference: bool = False,
+             absolute: bool = False) -> Markup:
+    """Only the number of a value in the job's display units (for table cells under a unit header);
     a missing value (None or NaN: not computed at this point) is "—"."""
     if value is None or (isinstance(value, float) and math.isnan(value)):
         return Markup("—")
-    v, _ = units.display(value, si_unit, system, difference=difference)
-    return Markup(num(v, sig))
+    v, _ = units.display(value, si_unit, system, difference=difference, absolute=absolute)
+    return Markup(num(settled(v, value, si_unit)))
+
+
+#: Below these SI magnitudes a computed value is round-off of the computation, not a result: the path
+#: integration and the flashes hold about 1e-9 relative on energies of order 1e5–1e6 J/kg (a few mJ/kg),
+#: and first-law sums of states carry the same; such a value prints as 0, never as −1.0000e−06 kJ.
+ZERO_BELOW = {"J": 1e-6, "J/kg": 1e-3, "W": 1e-3, "J/K": 1e-9, "J/(kg*K)": 1e-6}
+
+
+def settled(shown: float, value_si: float, si_unit: str) -> float:
+    """The shown value, or 0 where the SI value is below the computation's tolerance (``ZERO_BELOW``)."""
+    tol = ZERO_BELOW.get(si_unit.split("|")[0])
+    return 0.0 if tol is not None and abs(value_si) < tol else shown
 
 
 def subst_value(t: Term) -> str:
@@ -195,3 +222,21 @@ def _typeset(src: str, field) -> str:
             out.append(str(symbol(chunk)))
             i += len(chunk)
     return "".join(out)
+
+
+_KIND_WORDS = {"volume_flow": "actual volume flow", "mass_flow": "mass flow", "specific_energy": "specific energy",
+               "specific_volume": "specific volume", "specific_entropy": "specific entropy", "molar_flow": "molar flow",
+               "molar_mass": "molar mass"}
+
+
+def unit_system_text(system) -> str:
+    """The report's units in words: the base system and the units the job chose for itself."""
+    spec = units.display_spec(system)
+    base = "SI (kPa, °C, kJ)" if spec.system == "SI" else "US customary (psia, °F, Btu, hp)"
+    if not spec.spelled:
+        return base
+    own = ", ".join(f"{_KIND_WORDS.get(kind, kind.replace('_', ' '))} in {units.display_label(si, spec)}"
+                    + (" (gauge: above the site atmosphere)" if kind == "pressure" and spec.gauge else "")
+                    for kind, si in ((k, units.DISPLAY_KINDS[k]) for k, _ in spec.spelled))
+    return f"{base}, with the job's own units: {own}; temperature differences in " \
+           f"{units.display_label('K', spec, difference=True)}"

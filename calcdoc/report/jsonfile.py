@@ -3,6 +3,7 @@ from __future__ import annotations
 
 import json
 
+from .. import units
 from ..engine.results import Results, to_json
 from .words import STAGING_RULES, equation, gas_text, note, say
 
@@ -12,7 +13,8 @@ __all__ = ["dumps", "to_contract"]
 def to_contract(res: Results) -> dict:
     """The results contract with the findings in words: warnings in the job's units, notes of calcs as text."""
     out = to_json(res)
-    system = res.job.units
+    # the results file is the same whatever units the report is shown in: warnings in the base system
+    system = units.display_spec(res.job.units).system
     out["warnings"] = [say(w, system) for w in res.warnings]
     if isinstance(out.get("gas"), dict) and "model" in out["gas"]:
         gas = out["gas"]

@@ -9,7 +9,7 @@ import re
 from dataclasses import dataclass
 from functools import lru_cache
 
-__all__ = ["METHODS", "REFERENCES", "Method", "fluid_reference", "method", "reference"]
+__all__ = ["METHODS", "REFERENCES", "Method", "Reference", "fluid_reference", "method", "reference"]
 
 
 @dataclass(frozen=True)
@@ -19,44 +19,95 @@ class Method:
     refs: tuple[str, ...]
 
 
-REFERENCES: dict[str, str] = {
-    "cengel2019cv": "Çengel, Y. A., Boles, M. A., Kanoğlu, M. Thermodynamics: An Engineering Approach, 9th ed. "
-                    "McGraw-Hill Education, New York, 2019. Ch. 5 (mass and energy analysis of control volumes, "
-                    "unsteady-flow processes: charging and discharging of rigid vessels), ch. 17 (compressible flow: "
-                    "isentropic flow through nozzles, critical ratios, choked flow).",
-    "virtanen2020": "Virtanen, P., Gommers, R., Oliphant, T. E., et al. SciPy 1.0: fundamental algorithms for "
-                    "scientific computing in Python. Nature Methods 17, 261–272 (2020). "
-                    "doi:10.1038/s41592-019-0686-2. (scipy.integrate.solve_ivp, scipy.optimize.brentq.)",
-    "cengel2019": "Çengel, Y. A., Boles, M. A., Kanoğlu, M. Thermodynamics: An Engineering Approach, "
-                  "9th ed. McGraw-Hill Education, New York, 2019. Ch. 4 (moving boundary work, polytropic "
-                  "process), ch. 7 (entropy, isentropic relations of ideal gases).",
-    "moran2014": "Moran, M. J., Shapiro, H. N., Boettner, D. D., Bailey, M. B. Fundamentals of Engineering "
-                 "Thermodynamics, 8th ed. Wiley, Hoboken NJ, 2014. Sec. 2.2 (energy transfer by work, "
-                 "polytropic processes), sec. 6 (entropy).",
-    "codata2018": "Tiesinga, E., Mohr, P. J., Newell, D. B., Taylor, B. N. CODATA recommended values of the "
-                  "fundamental physical constants: 2018. Rev. Mod. Phys. 93, 025010 (2021). "
-                  "doi:10.1103/RevModPhys.93.025010. Molar gas constant R = 8.314 462 618 J/(mol·K) (exact).",
-    "usstd1976": "U.S. Standard Atmosphere, 1976. NOAA, NASA, U.S. Air Force, Washington DC, 1976, "
-                 "NOAA-S/T 76-1562. Pressure in the troposphere, eq. (33a) with geopotential height eq. (18).",
-    "bell2014": "Bell, I. H., Wronski, J., Quoilin, S., Lemort, V. Pure and Pseudo-pure Fluid Thermophysical "
-                "Property Evaluation and the Open-Source Thermophysical Property Library CoolProp. "
-                "Ind. Eng. Chem. Res. 53(6), 2498–2508 (2014). doi:10.1021/ie4033999.",
-    "schultz1962": "Schultz, J. M. The Polytropic Analysis of Centrifugal Compressors. Journal of Engineering "
-                   "for Power (Trans. ASME, Series A) 84(1), 69–82 (1962). doi:10.1115/1.3673381. "
-                   "(Cited from memory.)",
-    "asmeptc10": "ASME PTC 10-1997, Performance Test Code on Compressors and Exhausters. The American Society of "
-                 "Mechanical Engineers, New York, 1997. Polytropic analysis of real gases with the Schultz "
-                 "factor (sec. 5 and nonmandatory appendices). (Cited from memory; check the edition that "
-                 "applies.)",
-    "dixon2014": "Dixon, S. L., Hall, C. A. Fluid Mechanics and Thermodynamics of Turbomachinery, 7th ed. "
-                 "Butterworth-Heinemann, Oxford, 2014. Ch. 2, compressor and turbine efficiencies, small-stage "
-                 "(polytropic) efficiency. (Cited from memory.)",
-    "dormand1980": "Dormand, J. R., Prince, P. J. A family of embedded Runge–Kutta formulae. Journal of "
-                   "Computational and Applied Mathematics 6(1), 19–26 (1980). doi:10.1016/0771-050X(80)90013-3. "
-                   "(Cited from memory.)",
-    "hairer1993": "Hairer, E., Nørsett, S. P., Wanner, G. Solving Ordinary Differential Equations I: Nonstiff "
-                  "Problems, 2nd ed. Springer, Berlin, 1993. Sec. II.4 (step-size control, starting step) and "
-                  "II.5 (embedded Runge–Kutta pairs). (Cited from memory.)",
+@dataclass(frozen=True)
+class Reference:
+    """A source a signer can stand behind: who wrote it, what it is, which edition or year, and where in it.
+
+    ``checked`` names the document at hand the entry was checked against (kept in the code, not printed):
+    an entry no document at hand confirms does not belong here; say the method in general words instead.
+    """
+
+    authors: str
+    title: str
+    edition: str          # edition and/or year
+    publisher: str        # publisher, journal or issuing body
+    locator: str          # chapter, section or equation used
+    checked: str
+
+    def text(self) -> str:
+        parts = [self.authors.rstrip(".") + ".", self.title.rstrip(".") + ".", self.edition.rstrip(".") + ".",
+                 self.publisher.rstrip(".") + ".", self.locator.rstrip(".") + "."]
+        return " ".join(p for p in parts if p.strip(". "))
+
+
+REFERENCES: dict[str, Reference] = {
+    "cengel2019cv": Reference(
+        "Çengel, Y. A., Boles, M. A., Kanoğlu, M.", "Thermodynamics: An Engineering Approach",
+        "9th ed., 2019", "McGraw-Hill Education, New York",
+        "Ch. 5 (mass and energy analysis of control volumes: unsteady-flow processes, charging and "
+        "discharging of rigid vessels), ch. 17 (compressible flow: isentropic flow through nozzles, critical "
+        "ratios, choked flow)",
+        "title page and table of contents of the 9th edition (stored public copy)"),
+    "virtanen2020": Reference(
+        "Virtanen, P., Gommers, R., Oliphant, T. E., et al. (SciPy 1.0 Contributors)",
+        "SciPy 1.0: Fundamental Algorithms for Scientific Computing in Python", "2020",
+        "Nature Methods 17(3), 261–272, doi:10.1038/s41592-019-0686-2",
+        "The library as a whole; scipy.integrate.solve_ivp and scipy.optimize.brentq are used here (whole paper)",
+        "SciPy's own citation page and CITATION.bib"),
+    "cengel2019": Reference(
+        "Çengel, Y. A., Boles, M. A., Kanoğlu, M.", "Thermodynamics: An Engineering Approach",
+        "9th ed., 2019", "McGraw-Hill Education, New York",
+        "Ch. 1 (pressure, gauge and absolute), ch. 4 (energy analysis of closed systems: boundary work, "
+        "polytropic process, ideal-gas specific heats), ch. 5 (mass and energy analysis of control volumes: "
+        "steady-flow devices, throttling), ch. 7 (entropy: isentropic and polytropic relations of ideal gases, "
+        "reversible steady-flow work)",
+        "title page and table of contents of the 9th edition (stored public copy)"),
+    "codata2018": Reference(
+        "CODATA Task Group on Fundamental Constants (Tiesinga, E., Mohr, P. J., Newell, D. B., Taylor, B. N.)",
+        "The 2018 CODATA Recommended Values of the Fundamental Physical Constants",
+        "2018 adjustment, released 20 May 2019", "NIST, Gaithersburg MD (physics.nist.gov/cuu/Constants)",
+        "Molar gas constant R = 8.314 462 618… J/(mol·K), exact",
+        "scipy.constants (CODATA 2018 table, molar gas constant listed as exact)"),
+    "usstd1976": Reference(
+        "NOAA, NASA, U.S. Air Force (U.S. Committee on Extension to the Standard Atmosphere)",
+        "U.S. Standard Atmosphere, 1976", "1976", "U.S. Government Printing Office, Washington DC",
+        "Lower atmosphere: temperature and pressure by layer in geopotential height; troposphere layer "
+        "(lapse rate −6.5 K/km) used here",
+        "COESA description of the 1976 standard (stored public pages)"),
+    "bell2014": Reference(
+        "Bell, I. H., Wronski, J., Quoilin, S., Lemort, V.",
+        "Pure and Pseudo-pure Fluid Thermophysical Property Evaluation and the Open-Source Thermophysical "
+        "Property Library CoolProp", "2014", "Ind. Eng. Chem. Res. 53(6), 2498–2508, doi:10.1021/ie4033999",
+        "Whole paper (property evaluation from Helmholtz-energy equations of state)",
+        "CoolProp's own bibliography file, entry Bell-IECR-2014"),
+    "schultz1962": Reference(
+        "Schultz, J. M.", "The Polytropic Analysis of Centrifugal Compressors", "1962",
+        "American Society of Mechanical Engineers (paper, Journal of Engineering for Power)",
+        "Whole paper: the real-gas polytropic relations with the compressibility functions X and Y, and the "
+        "polytropic head factor f",
+        "first page of the paper (stored public copy)"),
+    "asmeptc10": Reference(
+        "The American Society of Mechanical Engineers", "ASME PTC 10-1997, Performance Test Code on "
+        "Compressors and Exhausters", "1997 edition, issued 30 September 1998", "ASME, New York",
+        "Sec. 5 (computation of results, real-gas dimensionless parameters); figs. 3.6 and 3.7 (Schultz "
+        "compressibility functions)",
+        "title page, date of issuance and contents of PTC 10-1997 (stored public copies)"),
+    "dixon2014": Reference(
+        "Dixon, S. L., Hall, C. A.", "Fluid Mechanics and Thermodynamics of Turbomachinery",
+        "7th ed., 2014 (published October 2013)", "Butterworth-Heinemann (Elsevier), Oxford",
+        "Ch. 1, basic principles: the first law for steady flow, definitions of efficiency, small-stage "
+        "(polytropic) efficiency of compressors and turbines",
+        "publisher's page of the 7th edition with its table of contents"),
+    "dormand1980": Reference(
+        "Dormand, J. R., Prince, P. J.", "A family of embedded Runge–Kutta formulae", "1980",
+        "Journal of Computational and Applied Mathematics 6(1), 19–26",
+        "The 5(4) pair (coefficients of the embedded formulae)",
+        "SciPy's RK45 docstring, reference [1]"),
+    "hairer1993": Reference(
+        "Hairer, E., Nørsett, S. P., Wanner, G.", "Solving Ordinary Differential Equations I: Nonstiff Problems",
+        "2nd ed., 1993", "Springer, Berlin (Springer Series in Computational Mathematics 8)",
+        "Sec. II.4 (practical computation: error estimation, step-size control, starting step)",
+        "SciPy's RK45 docstring (sec. II.4) and stored reference lists giving the 2nd edition, 1993"),
 }
 
 METHODS: dict[str, Method] = {
@@ -76,20 +127,20 @@ METHODS: dict[str, Method] = {
                             "x_2 = x_1 (T isothermal, P isobaric, v isochoric)", ("cengel2019",)),
     "state.specific_volume": Method("Specific volume of a fixed mass from its volume", "v = V / m", ("cengel2019",)),
     "state.volume": Method("Volume from mass and specific volume", "V = m·v", ("cengel2019",)),
-    "path.polytropic": Method("Polytropic path", "P·Vⁿ = const", ("cengel2019", "moran2014")),
+    "path.polytropic": Method("Polytropic path", "P·Vⁿ = const", ("cengel2019",)),
     "path.polytropic_n": Method("Polytropic exponent from two measured states",
-                                "n = ln(P2/P1) / ln(V1/V2)", ("moran2014",)),
+                                "n = ln(P2/P1) / ln(V1/V2)", ("cengel2019",)),
     "work.polytropic": Method("Boundary work of a polytropic process (n ≠ 1)",
-                              "W = (P2·V2 − P1·V1)/(1 − n)", ("cengel2019", "moran2014")),
+                              "W = (P2·V2 − P1·V1)/(1 − n)", ("cengel2019",)),
     "work.polytropic_n1": Method("Boundary work of a polytropic process, form exact for n = 1 and accurate "
                                  "near it", "W = P1·V1·[exp((1 − n)·ln r) − 1]/(1 − n), r = V2/V1; "
-                                 "W = P1·V1·ln(V2/V1) at n = 1", ("cengel2019", "moran2014")),
+                                 "W = P1·V1·ln(V2/V1) at n = 1", ("cengel2019",)),
     "work.isobaric": Method("Boundary work at constant pressure", "W = P·(V2 − V1)", ("cengel2019",)),
     "work.isochoric": Method("No boundary work at constant volume", "W = 0", ("cengel2019",)),
     "work.adiabatic": Method("Work of a reversible adiabatic (isentropic) process from the first law",
                              "W = −ΔU (Q = 0)", ("cengel2019",)),
     "heat.isothermal": Method("Heat of a reversible isothermal process from the definition of entropy",
-                              "Q = T·ΔS", ("cengel2019", "moran2014")),
+                              "Q = T·ΔS", ("cengel2019",)),
     "firstlaw.closed": Method("First law for a closed system", "Q = ΔU + W", ("cengel2019",)),
     "firstlaw.work": Method("Work from the first law for a closed system", "W = Q − ΔU", ("cengel2019",)),
     "ratio.leg": Method("Pressure or volume ratio of a leg, end over start (as the pressure ratio and "
@@ -116,7 +167,7 @@ METHODS: dict[str, Method] = {
                           "η_p (expander), Dormand–Prince 5(4) pair with step control to 1e-6 relative in head",
                           "v·dP = η_p·dh", ("schultz1962", "dixon2014", "dormand1980", "hairer1993", "bell2014")),
     "flow.n_ends": Method("Polytropic exponent from the end states of a stage", "n = ln(P2/P1)/ln(v1/v2)",
-                          ("schultz1962", "moran2014")),
+                          ("schultz1962", "cengel2019")),
     "flow.power": Method("Power of the flow from a per-unit-mass quantity", "P = ṁ·w;  Q̇ = ṁ·q", ("cengel2019",)),
     "flow.shaft_power": Method("Shaft power from gas power and mechanical efficiency",
                                "P_shaft = P_gas/η_m (compressor);  P_shaft = P_gas·η_m (expander)",
@@ -183,7 +234,7 @@ def method(method_id: str) -> Method:
 def reference(key: str) -> str:
     """Full citation of a reference key: ours, or a key of CoolProp's bibliography."""
     if key in REFERENCES:
-        return REFERENCES[key]
+        return REFERENCES[key].text()
     return fluid_reference(key)
 
 

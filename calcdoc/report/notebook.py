@@ -15,7 +15,7 @@ def _v(value, si_unit: str, system: str, sig: int = 5) -> str:
 
 
 def _u(si_unit: str, system: str) -> str:
-    return escape(units.pretty_unit(units.display_unit(si_unit, system)))
+    return escape(units.display_label(si_unit, system))
 
 
 def results_html(res) -> str:

@@ -15,8 +15,10 @@ from urllib.parse import unquote, urlsplit
 
 from .. import units
 from ..engine import software_versions
-from . import format as fmt, methods, words
+from ..job.quantities import PERCENT_MARGIN, QUANTITIES, percent_margin
+from . import changes, format as fmt, methods, words
 from .charts import diagrams, sweep_chart, time_chart
+from .conclusions import conclusions
 
 CAUTIONS = (
     "Compressed gas stores energy. A vessel, cylinder or pipe that fails at pressure can release it "
@@ -114,7 +116,7 @@ def _env():
     env = jinja2.Environment(loader=jinja2.FileSystemLoader(str(templates_dir())),
                              autoescape=True, undefined=jinja2.StrictUndefined,
                              trim_blocks=True, lstrip_blocks=True, finalize=breakable)
-    env.filters.update(num=fmt.num, qty=fmt.qty, unit_of=fmt.unit_of, value_in=fmt.value_in,
+    env.filters.update(num=fmt.num, refs=fmt.refs, qty=fmt.qty, unit_of=fmt.unit_of, value_in=fmt.value_in,
                        symbol=fmt.symbol, eq=fmt.equation, result_si=fmt.result_si,
                        css_string=fmt.css_string, flavour=fmt.flavour, subscripts=fmt.subscripts,
                        say=words.say, note=words.note, gas_text=words.gas_text)
@@ -171,6 +173,14 @@ def context(results) -> dict:
         "software": results.software or software_versions(),
         "fonts_url": fonts_dir().as_uri(),
         "title_text": f"{job.calc.number} rev. {job.calc.revision} — {job.calc.title}",
+        "unit_system_text": fmt.unit_system_text,
+        "conclusions": conclusions(results, system),
+        "marks": changes.marks(results),
+        "input_label": changes.input_label,
+        "result_label": changes.result_label,
+        "shows_percent": changes.shows_percent,
+        "percent_of": lambda name: percent_margin(QUANTITIES[name])[0] if name in QUANTITIES else "",
+        "gauge_quantities": [n for n, (k, _) in PERCENT_MARGIN.items() if k == "gauge"],
     }
 
 

@@ -4,13 +4,14 @@ from __future__ import annotations
 from .. import units
 from ..engine.revision import Diff
 from ..units import display
-from .format import _num
+from .changes import result_label, shows_percent
+from .format import _num, settled
 from .words import gas_text, say
 
 __all__ = ["diff_text", "summary"]
 
 
-def _show(value, unit: str, system: str, difference: bool = False) -> str:
+def _show(value, unit: str, system: units.Units, difference: bool = False) -> str:
     if value is None:
         return "—"
     if isinstance(value, str):
@@ -21,7 +22,7 @@ def _show(value, unit: str, system: str, difference: bool = False) -> str:
     return f"{v:.6g} {u}".strip()
 
 
-def diff_text(diff: Diff, system: str = "SI") -> str:
+def diff_text(diff: Diff, system: units.Units = "SI") -> str:
     """The comparison for a terminal."""
     lines = [f"Changes from {diff.old_label} to {diff.new_label}", ""]
     lines.append(f"Inputs changed ({len(diff.inputs)}):" if diff.inputs else "Inputs: none changed.")
@@ -35,8 +36,8 @@ def diff_text(diff: Diff, system: str = "SI") -> str:
         change = ""
         if m.change is not None:
             change = f"   change {_show(m.change, m.unit, system, difference=True)}"
-            change += f" ({m.percent:+.3g} %)" if m.percent is not None else ""
-        lines.append(f"  {m.key}: {_show(m.old, m.unit, system, m.difference)} → "
+            change += f" ({m.percent:+.3g} %)" if m.percent is not None and shows_percent(m.key, system) else ""
+        lines.append(f"  {result_label(m.key)}: {_show(m.old, m.unit, system, m.difference)} → "
                      f"{_show(m.new, m.unit, system, m.difference)}{change}")
     lines.append(f"  {diff.unchanged} result{'s' if diff.unchanged != 1 else ''} unchanged.")
     return "\n".join(lines) + "\n"
@@ -49,6 +50,7 @@ def summary(results, written) -> None:
 
     def show(value, unit, sig=5, difference=False):
         v, u = display(value, unit, system, difference=difference)
+        v = settled(v, value, unit)
         text = _num(v, sig) if v == 0 or 1e-3 <= abs(v) < 1e7 else f"{v:.{sig - 1}e}"   # no markup on a terminal
         return f"{text} {u}".replace("\u2009", " ").strip()
 
@@ -77,7 +79,12 @@ def summary(results, written) -> None:
               f"{show(solve['achieved']['value'], solve['achieved']['unit']) if solve['achieved']['unit'] else solve['achieved']['value']}"
               f", {solve['iterations']} iterations)")
     for c in results.checks:
-        print(f"  check {c.name} at {c.where}: {c.status.upper()}")
+        margin = f"margin {show(c.margin, c.unit, difference=True)}"
+        if c.required_entered:
+            margin += f" (required {c.required_entered}" + (
+                f" = {show(c.required_margin, c.unit, difference=True)})" if "%" in c.required_entered else ")")
+        print(f"  check {c.name} at {c.where}: {c.status.upper()}: value {show(c.value.value, c.unit)}, "
+              f"{c.kind} {show(c.limit, c.unit)}, {margin}")
     for w in results.warnings:
         print(f"  warning: {say(w, system)}")
     for p in written:

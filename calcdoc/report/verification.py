@@ -25,7 +25,7 @@ __all__ = ["context", "render_html", "render_pdf"]
 #: results give the same bytes. The date a verification was performed is written by hand on page 1.
 EPOCH = 1767225600   # 2026-01-01T00:00:00Z
 
-_KIND_SHORT = {"published": "published", "reference-library": "reference library", "from-memory": "from memory",
+_KIND_SHORT = {"published": "published", "reference-library": "reference library", "from-memory": "unconfirmed",
                "common-practice": "common practice"}
 
 

@@ -44,8 +44,9 @@ NOT_VERIFIED = (
     "Mixtures are verified against CoolProp's mixture model only, not against measured data.",
     "Only the numbers in the results are compared. The layout and wording of calc packages (PDF), the "
     "charts, and the messages for bad input are not verified by this report.",
-    "Values labelled 'from memory' were written by the case author without the document at hand; check "
-    "them against the cited document before relying on them.",
+    "Values marked 'unconfirmed' were written by the case author without the cited document at hand: they "
+    "show consistency with that value, not agreement with the source; confirm them against the cited "
+    "document before relying on them.",
 )
 
 _ENV_DISTS = (("CoolProp", "CoolProp"), ("pint", "pint"), ("WeasyPrint", "weasyprint"),

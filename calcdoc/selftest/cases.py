@@ -23,7 +23,7 @@ __all__ = ["SOURCE_KINDS", "Case", "CaseFileError", "Expected", "Source", "Topic
 SOURCE_KINDS = {
     "published": "Published (standard, handbook, paper or textbook; citation given)",
     "reference-library": "Independent reference library, called directly (named, with its version)",
-    "from-memory": "From memory (recalled without the document at hand; check against the citation)",
+    "from-memory": "Unconfirmed: the case author's value, written without the cited document at hand; a check of consistency, not a verification against the source, until someone confirms it against the citation",
     "common-practice": "Common practice (a rule of the trade)",
 }
 

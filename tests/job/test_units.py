@@ -76,7 +76,7 @@ def test_display_conversions():
     assert v == pytest.approx(1e5 / 6894.757293168, rel=1e-12) and u == "psia"
     # a temperature difference never takes the offset
     v, u = units.display(10.0, "K", "US", difference=True)
-    assert v == pytest.approx(18.0, rel=1e-12) and u == "°R"
+    assert v == pytest.approx(18.0, rel=1e-12) and u == "Δ°F"   # the issue: temperature differences as K or Δ°F, never °R
     assert math.isclose(units.display(1000.0, "J", "SI")[0], 1.0)
 
 
