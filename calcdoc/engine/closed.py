@@ -7,10 +7,10 @@ from ..job.model import Job, LegSpec
 from ..physics.calc import Calc, Term
 from ..physics.closed import LegResult, Target, closed_leg
 from ..physics.gas import Gas, State
-from .moist import moist_setup
-from .moistclosed import compute_closed_moist
 from .common import gas_findings, job_basis, make_gas, saturation_near, site_calcs, software_versions
 from .diagnose import ideal_condensation_warnings, phase_warnings, start_state_problem
+from .moist import moist_setup
+from .moistclosed import compute_closed_moist
 from .results import Results, StateRecord
 
 __all__ = ["NEAR_SATURATION_K", "compute_closed"]

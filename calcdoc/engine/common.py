@@ -124,7 +124,8 @@ def site_calcs(job: Job) -> list[Calc]:
     return out
 
 
-def saturation_near(gas: Gas, legs: Sequence[LegResult]) -> tuple[tuple[float, float, float, float], ...] | None:
+def saturation_near(gas: Gas, legs: Sequence[LegResult]
+                    ) -> tuple[tuple[float, float, float, float, float], ...] | None:
     """The saturation dome for the charts when a path comes within 30 % of the critical temperature."""
     if not isinstance(gas, RealGas) or not gas.pure:
         return None

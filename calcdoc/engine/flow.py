@@ -101,9 +101,9 @@ def run_flow(job: Job) -> FlowResults:
     hums, flows = (moist_states(moist[0].W, flow["m_dot"].value, states, legs) if moist else
                    ([None] * len(states), [ctx.m_dot] * len(states)))
     if moist:
-        warnings += moist_warnings(legs, hums)
+        warnings += moist_warnings(legs, [h for h in hums if h is not None])
     records = tuple(StateRecord(k + 1, str(k + 1), st, V_dot=m * st.v, humidity=hum)
-                    for k, (st, m, hum) in enumerate(zip(states, flows, hums)))
+                    for k, (st, m, hum) in enumerate(zip(states, flows, hums, strict=True)))
     warnings += ideal_condensation_warnings(job, gas, legs, s1)   # ideal model of a named fluid: Z, condensation
     totals = _totals(legs)
     if moist and condensate_total(legs) is not None:

@@ -9,7 +9,8 @@ from ..errors import Finding, JobError, PhysicsError
 from ..job.messages import problem
 from ..job.model import Input, Job
 from ..physics.calc import Calc, Term
-from ..physics.gas import Gas, IdealGas, RealGas
+from ..physics.closed import LegResult
+from ..physics.gas import Gas, IdealGas, RealGas, State
 from ..physics.moist import Humidity, MoistEos, humidity_at, moist_eos
 from ..physics.moistlegs import start_humidity
 
@@ -55,7 +56,8 @@ def dry_flow_calc(m_dot: float, W: float) -> Calc:
                 {"m": Term("ṁ", m_dot, "kg/s"), "W": Term("W_1", W, "")}, note="moist.flow_basis")
 
 
-def moist_states(W1: float, m1: float, states: list, legs: list) -> tuple[list[Humidity], list[float]]:
+def moist_states(W1: float, m1: float, states: list[State], legs: list[LegResult]
+                 ) -> tuple[list[Humidity], list[float]]:
     """The humidity and the moist-gas mass flow of every state: a condensing cooler changes both."""
     hums = [humidity_at(states[0].P, states[0].T, W1)]
     flows = [m1]
@@ -70,7 +72,7 @@ def moist_states(W1: float, m1: float, states: list, legs: list) -> tuple[list[H
     return hums, flows
 
 
-def moist_warnings(legs: list, hums: list[Humidity]) -> list[Finding]:
+def moist_warnings(legs: list[LegResult], hums: list[Humidity]) -> list[Finding]:
     """A saturated or wet compressor or expander inlet (droplets), and a leg end wetter than saturation where no
     condensate is drained (the water is kept as vapour there)."""
     out = []
@@ -84,7 +86,7 @@ def moist_warnings(legs: list, hums: list[Humidity]) -> list[Finding]:
     return out
 
 
-def condensate_total(legs: list) -> Calc | None:
+def condensate_total(legs: list[LegResult]) -> Calc | None:
     """The condensate drained by all the coolers of the train [kg/s]."""
     items = [(leg, leg.quantities["condensate"]) for leg in legs if "condensate" in leg.quantities]
     if not items:

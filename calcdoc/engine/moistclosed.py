@@ -6,6 +6,8 @@ from ..errors import Finding, JobError, PhysicsError
 from ..job.messages import problem
 from ..job.model import Job
 from ..physics.calc import Calc, Term
+from ..physics.closed import LegResult
+from ..physics.gas import Gas
 from ..physics.moist import MoistEos, humidity_at
 from ..physics.moistclosed import receiver_leg
 from .common import gas_findings, job_basis, site_calcs, software_versions
@@ -15,7 +17,8 @@ from .results import Results, StateRecord
 __all__ = ["compute_closed_moist"]
 
 
-def compute_closed_moist(job: Job, gas, gas_calcs: list[Calc], meos: MoistEos, hum_calcs: list[Calc]) -> Results:
+def compute_closed_moist(job: Job, gas: Gas, gas_calcs: list[Calc], meos: MoistEos, hum_calcs: list[Calc]
+                         ) -> Results:
     P1, T1 = job.start.pressure.si, job.start.temperature.si
     s1 = meos.pt(P1, T1).state
     start = site_calcs(job) + list(gas_calcs) + list(hum_calcs)
@@ -25,13 +28,15 @@ def compute_closed_moist(job: Job, gas, gas_calcs: list[Calc], meos: MoistEos, h
         mass = Calc("m", m, "kg", "{m}", "input", {"m": Term("m", m, "kg")}, note="moist.flow_basis_closed")
         V = m * s1.v
     else:
+        assert job.start.volume is not None
         V = job.start.volume.si
         m = V / s1.v
         mass = Calc("m", m, "kg", "{V1} / {v1}", "state.mass",
                     {"V1": Term("V_1", V, "m**3"), "v1": Term("v_1", s1.v, "m**3/kg")}, note="moist.flow_basis_closed")
     W1 = meos.W
     warnings = gas_findings(job)
-    legs, records = [], [StateRecord(1, "1", s1, V=V, humidity=humidity_at(P1, T1, W1))]
+    legs: list[LegResult] = []
+    records = [StateRecord(1, "1", s1, V=V, humidity=humidity_at(P1, T1, W1))]
     s, eos, W = s1, meos, W1
     for k, leg in enumerate(job.legs):
         i = k + 1

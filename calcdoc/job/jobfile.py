@@ -15,9 +15,9 @@ from pathlib import Path
 
 from .. import units
 from ..errors import JobError, Problem
+from ..physics.fluids import component_name, molar_mass
 from .flowopts import FLOW_OPTION_KEYS, chain_problems, read_options
 from .limits import Places, read_limits
-from ..physics.fluids import component_name, molar_mass
 from .model import HUMIDITY_KEYS, GasSpec, Input, Job, LegSpec, Site, StartSpec, TitleBlock, keys_of
 from .reader import Reader, describe as _describe
 from .solve import read_solve
@@ -173,7 +173,7 @@ class _Validator(Reader):
         site = self._site_atmosphere(node, m)
         return dataclasses.replace(site, relative_humidity=rh) if rh is not None else site
 
-    def _humidity(self, m: dict, key: str) -> Input | None:
+    def _humidity(self, m: dict[str, Node], key: str) -> Input | None:
         """A humidity input: relative humidity as a fraction or percent (0 to 100 %), a dew point, or a
         humidity ratio in kg of water per kg of dry air."""
         if key == "dew_point":
@@ -190,7 +190,7 @@ class _Validator(Reader):
             return None
         return q
 
-    def _site_atmosphere(self, node: Node, m: dict) -> Site:
+    def _site_atmosphere(self, node: Node, m: dict[str, Node]) -> Site:
         if "atmosphere" in m and "elevation" in m:
             self.add(node, "both atmosphere and elevation are given", "give one: the measured atmosphere or the elevation")
         if "atmosphere" in m:
@@ -479,10 +479,11 @@ def _mole_fractions(mass: list[tuple[str, float]]) -> list[tuple[str, float]]:
     """Mass fractions → mole fractions, x_i = (w_i/M_i) / Σ(w_j/M_j); unchanged where a component is unknown
     (the fluid check names it)."""
     Ms = [molar_mass(c) for c, _ in mass]
-    if any(M is None for M in Ms):
+    known = [M for M in Ms if M is not None]
+    if len(known) < len(Ms):
         return mass
-    n = [w / M for (_, w), M in zip(mass, Ms)]
-    return [(c, ni / sum(n)) for (c, _), ni in zip(mass, n)]
+    n = [w / M for (_, w), M in zip(mass, known, strict=True)]
+    return [(c, ni / sum(n)) for (c, _), ni in zip(mass, n, strict=True)]
 
 
 def _looks_like_percent(mm: Node) -> bool:

@@ -21,6 +21,7 @@ import multiprocessing
 import os
 import time
 from dataclasses import dataclass
+from typing import Any
 
 __all__ = ["Envelope", "HEOS_BUDGET_S", "PR_BUDGET_S", "PR_MARGIN_K", "phase_envelope"]
 
@@ -61,7 +62,7 @@ class Envelope:
         return PR_MARGIN_K if self.source == "pr" else 0.0
 
 
-_CACHE: dict[tuple, Envelope] = {}
+_CACHE: dict[tuple[object, ...], Envelope] = {}
 
 
 def phase_envelope(components: tuple[str, ...], x: tuple[float, ...], heos_budget: float = HEOS_BUDGET_S,
@@ -88,7 +89,7 @@ def phase_envelope(components: tuple[str, ...], x: tuple[float, ...], heos_budge
     return env
 
 
-def _child(conn, backend: str, components: tuple[str, ...], x: tuple[float, ...]) -> None:
+def _child(conn: Any, backend: str, components: tuple[str, ...], x: tuple[float, ...]) -> None:
     """Trace the envelope and send (T, P) points and the peak memory back (runs in the child process)."""
     import resource
 
@@ -101,7 +102,7 @@ def _child(conn, backend: str, components: tuple[str, ...], x: tuple[float, ...]
         d = AS.get_phase_envelope_data()
         M = AS.molar_mass()
         pts = []
-        for k, (T, P, Q) in enumerate(zip(d.T, d.p, d.Q)):
+        for k, (T, P, Q) in enumerate(zip(d.T, d.p, d.Q, strict=True)):
             side = (d.rhomolar_vap, d.smolar_vap, d.hmolar_vap) if Q > 0.5 else (d.rhomolar_liq, d.smolar_liq,
                                                                                    d.hmolar_liq)
             row = (float(T), float(P), M / float(side[0][k]), float(side[1][k]) / M, float(side[2][k]) / M)
@@ -125,13 +126,13 @@ def _cpu_seconds(pid: int) -> float | None:
 
 
 def _traced(backend: str, components: tuple[str, ...], x: tuple[float, ...], budget: float
-            ) -> tuple[str, list, int]:
+            ) -> tuple[str, list[Any], int]:
     import CoolProp  # noqa: F401 - loaded before the fork, so the child's budget is spent on tracing alone
 
     methods = multiprocessing.get_all_start_methods()
     ctx = multiprocessing.get_context("fork" if "fork" in methods else "spawn")
     recv, send = ctx.Pipe(duplex=False)
-    proc = ctx.Process(target=_child, args=(send, backend, components, x), daemon=True)
+    proc = ctx.Process(target=_child, args=(send, backend, components, x), daemon=True)  # type: ignore[attr-defined]
     proc.start()
     send.close()
     try:

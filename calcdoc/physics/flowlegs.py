@@ -267,10 +267,11 @@ def _machine_real(ctx, comp, i, s1, P2, r, eta_p, eta_s, T2m, facts):
     return s2, s2s, epc, eps, path, calcs
 
 
-def _machine_real_wet(calcs, i, s1, s2, s2s, eta_s, facts):
+def _machine_real_wet(calcs: list[Calc], i: int, s1: State, s2: State, s2s: State, eta_s: float | None,
+                      facts: list[Finding]) -> tuple[State, State, None, Calc, list[State], list[Calc]]:
     """The end of an expander with a two-phase outlet: efficiencies on enthalpy differences only."""
     j = i + 1
-    calcs.append(Calc(f"T_{j}s", s2s.T, "K", f"T(P_{j}, s = s_{i})", "eos.real", note="isentropic end state"))
+    calcs.append(Calc(f"T_{j}s", s2s.T, "K", f"T(P_{j}, s = s_{i})", "eos.real", note="isentropic_end"))
     if s2s.quality is not None:
         calcs.append(Calc(f"x_{j}s", s2s.quality, "", f"x(P_{j}, s = s_{i})", "eos.real",
                           note="flow.vapour_fraction"))
@@ -395,7 +396,7 @@ def throttle(ctx: Ctx, name: str, i: int, s1: State, P2: float) -> LegResult:
         note = "throttle_eos"
     wet = s2.quality is not None
     if wet:
-        note = "throttle_wet" if ctx.gas.pure else "throttle_wet_mixture"
+        note = "throttle_wet" if getattr(ctx.gas, "pure", True) else "throttle_wet_mixture"
     calcs = [Calc(f"h_{j}", s1.h, "J/kg", "{h1}", "flow.throttle", {"h1": _t("h", i, s1.h, "J/kg")},
                   note="throttle_h"),
              Calc(f"T_{j}", s2.T, "K", f"T(P_{j}, h_{j})", ctx.gas.eos_method, note=note)]

@@ -79,7 +79,7 @@ class Eos:
         self.mixture = not gas.pure
         self.envelope: list[tuple[float, float]] = []   # (T, P) along the phase envelope
         self.envelope_source = ""                       # 'heos', 'pr' or 'none' (mixtures)
-        self.envelope_curve: tuple = ()
+        self.envelope_curve: tuple[tuple[float, float, float, float, float], ...] = ()
         self.margin = 0.0                               # room on the gas side of the envelope [K]
         self.findings: list[Finding] = []               # fallbacks taken, for the report's warnings
         self._recent: dict[tuple[float, float], Point] = {}   # states already flashed (a leg's start)
@@ -272,15 +272,16 @@ class Eos:
             except PhysicsError:
                 pass
         if not self.mixture:
-            return self.gas.state_Ph(P, target) if prop == "h" else self.gas.state_Ps(P, target)
+            st: State = self.gas.state_Ph(P, target) if prop == "h" else self.gas.state_Ps(P, target)
+            return st
         return self._wet_search(P, prop, target, T0, what)
 
     def _wet_search(self, P: float, prop: str, target: float, T0: float, what: dict[str, float]) -> State:
         def g(T: float) -> tuple[float, State]:
             st = self.state_any(P, T)
-            return getattr(st, prop) - target, st
+            return float(getattr(st, prop)) - target, st
 
-        def safe(T: float):
+        def safe(T: float) -> tuple[float, State] | None:
             try:
                 return g(T)
             except PhysicsError:

@@ -77,7 +77,7 @@ class Gas:
         """The state at pressure P [Pa] and specific enthalpy h [J/kg]."""
         raise NotImplementedError
 
-    def saturation_curve(self, n: int = 60) -> list[tuple[float, float, float, float]] | None:
+    def saturation_curve(self, n: int = 60) -> list[tuple[float, float, float, float, float]] | None:
         """Points (T, P, v, s, h) of the saturated liquid and vapour lines, or None if not applicable."""
         return None
 
@@ -297,7 +297,7 @@ class RealGas(Gas):
         except ValueError:
             return None
 
-    def saturation_curve(self, n: int = 60) -> list[tuple[float, float, float, float]] | None:
+    def saturation_curve(self, n: int = 60) -> list[tuple[float, float, float, float, float]] | None:
         """Points (T, P, v, s) of the saturated liquid and vapour lines of a pure fluid (None for a mixture)."""
         if not self.pure:
             return None

@@ -27,6 +27,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from typing import Any
 
 from ..errors import PhysicsError
 from .flowpath import Eos, Point
@@ -48,10 +49,10 @@ _RHO_IDEAL = 1e-6   # kg/m3: a density where CoolProp's Water is an ideal gas to
 class _Water:
     """CoolProp's Water, one AbstractState reused."""
 
-    _AS = None
+    _AS: Any = None
 
     @classmethod
-    def state(cls):
+    def state(cls) -> Any:
         if cls._AS is None:
             import CoolProp
 
@@ -67,7 +68,7 @@ def p_ws(T: float) -> float:
     if not T_TRIPLE <= T < AS.T_critical():
         raise PhysicsError("moist.saturation_range", T=T)
     AS.update(CP.QT_INPUTS, 0.0, T)
-    return AS.p()
+    return float(AS.p())
 
 
 def water_dew_point(p_v: float) -> float | None:
@@ -79,7 +80,7 @@ def water_dew_point(p_v: float) -> float | None:
     if not AS.trivial_keyed_output(CP.iP_triple) <= p_v < AS.p_critical():
         return None
     AS.update(CP.PQ_INPUTS, p_v, 0.0)
-    return AS.T()
+    return float(AS.T())
 
 
 def humidity_ratio(P: float, p_v: float) -> float:
@@ -98,7 +99,7 @@ def liquid_enthalpy(P: float, T: float) -> float:
 
     AS = _Water.state()
     AS.update(CP.PT_INPUTS, P, T)
-    return AS.hmass()
+    return float(AS.hmass())
 
 
 def liquid_state(P: float, T: float) -> tuple[float, float, float]:
@@ -107,7 +108,7 @@ def liquid_state(P: float, T: float) -> tuple[float, float, float]:
 
     AS = _Water.state()
     AS.update(CP.PT_INPUTS, P, T)
-    return 1.0 / AS.rhomass(), AS.umass(), AS.smass()
+    return 1.0 / float(AS.rhomass()), float(AS.umass()), float(AS.smass())
 
 
 @dataclass(frozen=True)
@@ -136,7 +137,7 @@ def _vapour(T: float, p_v: float) -> tuple[float, float, float]:
 
     AS = _Water.state()
     AS.update(CP.DmassT_INPUTS, _RHO_IDEAL, T)
-    h, s0, cp = AS.hmass(), AS.smass(), AS.cp0mass()
+    h, s0, cp = float(AS.hmass()), float(AS.smass()), float(AS.cp0mass())
     rho_v = p_v / (R_V * T)
     return h, s0 - R_V * math.log(rho_v / _RHO_IDEAL), cp
 
@@ -163,7 +164,7 @@ class MoistAir(Gas):
         self.pmax = getattr(dry, "pmax", 1e9)
 
     def describe(self) -> str:
-        return self.dry.describe()
+        return str(getattr(self.dry, "describe")())
 
     def dew_temperature(self, P: float) -> float | None:
         return water_dew_point(self.y_v * P) if self.W > 0 else None
@@ -175,7 +176,8 @@ class MoistEos(Eos):
 
     def __init__(self, dry: Gas, W: float, dry_eos: Eos | None):
         self.dry, self.dry_eos = dry, dry_eos
-        self.gas = MoistAir(dry, W)
+        self.moist = MoistAir(dry, W)
+        self.gas = self.moist  # type: ignore[assignment]  # the moist gas stands where Eos keeps its RealGas
         self.W = W
         self.mixture = True
         self.envelope = []
@@ -189,7 +191,7 @@ class MoistEos(Eos):
         return MoistEos(self.dry, W, self.dry_eos)
 
     def dew_temperature(self, P: float) -> float | None:
-        return self.gas.dew_temperature(P)
+        return self.moist.dew_temperature(P)
 
     def outside_envelope(self, P: float, T: float) -> bool:
         return True
@@ -197,19 +199,20 @@ class MoistEos(Eos):
     def side(self, P: float, T: float) -> int:
         return 0
 
-    def saturation(self, P: float):
+    def saturation(self, P: float) -> None:
         return None
 
     def state_any(self, P: float, T: float) -> State:
         return self.pt(P, T).state
 
     def _pt(self, P: float, T: float) -> Point:
-        g = self.gas
+        g = self.moist
         if self.dry_eos is not None:
             a = self.dry_eos.pt(P, T)
             sa, cpa, vTa = a.state, a.cp, a.vT
         else:
             dry = self.dry
+            assert isinstance(dry, IdealGas)
             sa = dry.state_PT(P, T)
             cpa, vTa = dry.cp, dry.R / P
         g.flashes += 1

@@ -12,15 +12,18 @@ with the moist-air model of :mod:`calcdoc.physics.moist` and liquid water from C
 """
 from __future__ import annotations
 
+from ..errors import PhysicsError
+from collections.abc import Callable
+
 from .calc import Calc, Term
 from .closed import LegResult
+from .gas import State
 from .moist import MoistEos, humidity_ratio, liquid_state, p_ws, vapour_pressure
-from ..errors import PhysicsError
 
 __all__ = ["receiver_leg"]
 
 
-def _solve_P(f, P0: float) -> float:
+def _solve_P(f: Callable[[float], float], P0: float) -> float:
     """Secant on P for f(P) = 0 (the volume balance), to 1e-10 relative."""
     a, b = P0, P0 * 1.01
     fa, fb = f(a), f(b)
@@ -32,11 +35,11 @@ def _solve_P(f, P0: float) -> float:
         a, fa, b = b, fb, c
         fb = f(b)
         if abs(b - a) < 1e-10 * b:
-            return b
+            return float(b)
     raise PhysicsError("moist.receiver_pressure")
 
 
-def receiver_leg(meos: MoistEos, name: str, i: int, s1, m: float, V: float, T2: float
+def receiver_leg(meos: MoistEos, name: str, i: int, s1: State, m: float, V: float, T2: float
                  ) -> tuple[LegResult, MoistEos, float]:
     """The leg, the moist gas after it and the condensate in the volume [kg]."""
     j = i + 1
@@ -88,7 +91,7 @@ def receiver_leg(meos: MoistEos, name: str, i: int, s1, m: float, V: float, T2: 
               {"mg": Term("m_g", mg, "kg"), "u2": Term(f"u_{j}", s2.u, "J/kg"), "mc": Term("m_c", m_c, "kg"),
                "uf": Term("u_f", uf, "J/kg"), "m": Term("m", m, "kg"), "u1": Term(f"u_{i}", s1.u, "J/kg")},
               note="moist.receiver_U")
-    W = Calc("W", 0.0, "J", "0", "path.constant", note="constant volume: no boundary work")
+    W = Calc("W", 0.0, "J", "0", "path.constant", note="moist.no_boundary_work")
     Q = Calc("Q", dU.value, "J", "{dU}", "moist.receiver", {"dU": Term("ΔU", dU.value, "J")},
              note="moist.duty_closed")
     dH = Calc("ΔH", H2 - H1, "J", "(m_g·h_2 + m_c·h_f) − m·h_1", "moist.receiver")

@@ -12,12 +12,12 @@ at W_2, ṁ_1 − ṁ_c. SI: kg/s, J/kg, W.
 """
 from __future__ import annotations
 
+from ..errors import PhysicsError
 from .calc import Calc, Term
 from .closed import LegResult
 from .flowlegs import PATH_POINTS, Ctx, heat_exchanger
 from .gas import State
 from .moist import T_TRIPLE, MoistEos, humidity_ratio, liquid_enthalpy, p_ws, vapour_pressure
-from ..errors import PhysicsError
 
 __all__ = ["moist_cooler", "start_humidity"]
 
@@ -65,7 +65,8 @@ def moist_cooler(ctx: Ctx, name: str, process: str, i: int, s1: State, P2: float
     """A cooler or heater of moist air; below the dew point the outlet is saturated and the condensate drains.
 
     Changes ``ctx`` for the legs that follow a condensing cooler: the gas at W_2 and the flow ṁ_1 − ṁ_c."""
-    meos: MoistEos = ctx.eos
+    meos = ctx.eos
+    assert isinstance(meos, MoistEos)
     W1 = meos.W
     j = i + 1
     m1 = ctx.m_dot
@@ -108,7 +109,7 @@ def moist_cooler(ctx: Ctx, name: str, process: str, i: int, s1: State, P2: float
     q = Calc("q_in", Q / m1, "J/kg", "{Q}/{m1}", "moist.condensate",
              {"Q": Term("Q̇", Q, "W"), "m1": Term(f"ṁ_{i}", m1, "kg/s")}, note="moist.q_per_inlet")
     calcs += [C, H1, H2, HF, D, q]
-    W = Calc("w_in", 0.0, "J/kg", "0", "flow.firstlaw_heat", note="no shaft work")
+    W = Calc("w_in", 0.0, "J/kg", "0", "flow.firstlaw_heat", note="no_shaft_work")
     P = Calc("P_gas", 0.0, "W", "0", "flow.firstlaw_heat")
     path = [s1]
     for k in range(1, PATH_POINTS):

@@ -95,6 +95,7 @@ NOTES: dict[str, str] = {
     "moist.no_condensate": "the outlet is above the dew point: no condensate",
     "moist.liquid": "liquid water at the outlet pressure and temperature",
     "moist.duty": "negative: heat removed; includes the latent heat of the condensate and the enthalpy it drains",
+    "moist.no_boundary_work": "constant volume: no boundary work",
     "moist.duty_closed": "negative: heat removed; includes the latent heat of the water that condensed",
     "moist.q_per_inlet": "per kg of moist gas entering the leg",
     "moist.receiver_P": "the end pressure of the fixed volume, gas and condensed liquid together",

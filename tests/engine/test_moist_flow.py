@@ -3,12 +3,12 @@ and of energy (CoolProp's Air and Water called directly), the warnings, and bad 
 from __future__ import annotations
 
 import pytest
+from conftest import flow_job
 
 from calcdoc.engine import run
 from calcdoc.errors import JobError
 from calcdoc.job import loads
 from calcdoc.report.words import say
-from conftest import flow_job
 
 AIR = "{fluid: Air, model: real}"
 TRAIN = """\

@@ -2,12 +2,12 @@
 from __future__ import annotations
 
 import pytest
+from conftest import flow_job
 
 from calcdoc.engine.common import gas_findings
 from calcdoc.errors import JobError
 from calcdoc.job import loads
 from calcdoc.physics.fluids import TRADE_NAMES, known_fluid
-from conftest import flow_job
 
 START = "{pressure: 30 bar, temperature: 40 degC, mass_flow: 1 kg/s}"
 LEG = "- {name: Heat, process: heater, end: {temperature: 60 degC}}\n"
@@ -31,8 +31,8 @@ def test_short_names_map_to_coolprop_names_and_mass_basis_converts():
     assert names == ["Methane", "Ethane", "CarbonDioxide"]
     # hand conversion with the molar masses from CoolProp called directly: x_i = (w_i/M_i)/Σ(w_j/M_j)
     M = [CP.PropsSI("molar_mass", c) for c in names]
-    n = [w / m for w, m in zip((0.8, 0.15, 0.05), M)]
-    for (_, x), ni in zip(job.gas.mixture, n):
+    n = [w / m for w, m in zip((0.8, 0.15, 0.05), M, strict=True)]
+    for (_, x), ni in zip(job.gas.mixture, n, strict=True):
         assert x == pytest.approx(ni / sum(n), rel=1e-12)
     assert gas_findings(job) == []
 

@@ -12,14 +12,14 @@ import math
 import resource
 
 import pytest
+from conftest import flow_job
+from natural_gases import NATURAL_GASES
 
 from calcdoc.engine import run
 from calcdoc.job import loads
 from calcdoc.physics.envelope import phase_envelope
 from calcdoc.physics.flowpath import Eos
 from calcdoc.physics.gas import RealGas
-from conftest import flow_job
-from natural_gases import NATURAL_GASES
 
 LETDOWN = {"Methane": 0.86, "Ethane": 0.07, "Propane": 0.05, "n-Butane": 0.02}
 
