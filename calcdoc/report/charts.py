@@ -83,7 +83,7 @@ def diagrams(results, system: str) -> dict[str, str]:
         ax.plot(v, P, color=PALETTE[k % len(PALETTE)], label=f"{leg.i}→{leg.i + 1}  {leg.name}")
     _mark_states(ax, results, system, "v", "P")
     vs = Ps = None
-    if sat:
+    if sat and getattr(results.gas, "pure", True):   # a mixture's envelope: on T–s and P–h only
         vs = _conv([p[2] for p in sat], "m**3/kg", system)
         Ps = _conv([p[1] for p in sat], "Pa", system)
         _dome(ax, vs, Ps)
