@@ -164,7 +164,7 @@ class MoistAir(Gas):
         self.pmax = getattr(dry, "pmax", 1e9)
 
     def describe(self) -> str:
-        return str(getattr(self.dry, "describe")())
+        return str(self.dry.describe())  # type: ignore[attr-defined]  # every gas model describes itself
 
     def dew_temperature(self, P: float) -> float | None:
         return water_dew_point(self.y_v * P) if self.W > 0 else None

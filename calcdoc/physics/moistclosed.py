@@ -12,9 +12,9 @@ with the moist-air model of :mod:`calcdoc.physics.moist` and liquid water from C
 """
 from __future__ import annotations
 
-from ..errors import PhysicsError
 from collections.abc import Callable
 
+from ..errors import PhysicsError
 from .calc import Calc, Term
 from .closed import LegResult
 from .gas import State
