@@ -19,7 +19,7 @@ from ..physics.calc import Calc, Term
 from ..physics.closed import LegResult
 from ..physics.flowlegs import Ctx, MeasuredEndError, heat_exchanger, machine, reversible, throttle
 from ..physics.flowpath import Eos, TwoPhaseError
-from ..physics.gas import RealGas, State
+from ..physics.gas import Gas, RealGas, State
 from ..physics.moist import MoistEos
 from ..physics.moistlegs import moist_cooler
 from ..physics.staging import stage_ratio_calc, suction_pressures
@@ -54,7 +54,7 @@ def run_flow(job: Job) -> FlowResults:
     gas, gas_calcs = make_gas(job)
     moist = moist_setup(job, gas)          # moist air: the legs run on the moist gas (dry air + water)
     eos = moist[0] if moist else Eos(gas) if isinstance(gas, RealGas) else None
-    ctx = Ctx(eos.gas if moist else gas, eos, 0.0)
+    ctx = Ctx(moist[0].moist if moist else gas, eos, 0.0)
     warnings: list[Finding] = []
     if eos is not None:
         warnings += eos.findings          # fallbacks of the phase envelope, never silent
@@ -106,8 +106,9 @@ def run_flow(job: Job) -> FlowResults:
                     for k, (st, m, hum) in enumerate(zip(states, flows, hums, strict=True)))
     warnings += ideal_condensation_warnings(job, gas, legs, s1)   # ideal model of a named fluid: Z, condensation
     totals = _totals(legs)
-    if moist and condensate_total(legs) is not None:
-        totals += (condensate_total(legs),)
+    cond = condensate_total(legs) if moist else None
+    if cond is not None:
+        totals += (cond,)
     basis = job_basis(job, gas)
     basis["flow"] = {"standard": None if job.start.standard_volume_flow is None else {
         "pressure": {"value": job.start.standard_pressure.si, "unit": "Pa"},
@@ -116,7 +117,7 @@ def run_flow(job: Job) -> FlowResults:
     if staging_json:
         extra["staging"] = staging_json
     if eos is not None:
-        extra["eos_flashes"] = getattr(gas, "flashes", 0) + (ctx.gas.flashes if moist else 0)
+        extra["eos_flashes"] = getattr(gas, "flashes", 0) + (moist[0].moist.flashes if moist else 0)  # type: ignore[assignment]
     if moist:
         basis["gas"]["moist"] = {"model": "ideal mixture of the dry-air model and water vapour",
                                  "humidity_ratio_start": moist[0].W}
@@ -199,7 +200,8 @@ def _leg(job: Job, ctx: Ctx, leg: LegSpec, opt: LegOptions, i: int, s: State) ->
     return [machine(ctx, leg.name, proc, i, s, P2, eta_p, eta_s, eta_m, T2m)], {}
 
 
-def _exchanger(ctx: Ctx, name: str, proc: str, i: int, s: State, P2: float, T2: float, dcalc) -> LegResult:
+def _exchanger(ctx: Ctx, name: str, proc: str, i: int, s: State, P2: float, T2: float, dcalc: Calc | None
+               ) -> LegResult:
     """A cooler or heater; of moist air, one that drains condensate below the dew point."""
     if isinstance(ctx.eos, MoistEos):
         return moist_cooler(ctx, name, proc, i, s, P2, T2, dcalc)
@@ -315,11 +317,11 @@ def _totals(legs: list[LegResult]) -> tuple[Calc, ...]:
     return tuple(out)
 
 
-def _dome(ctx: Ctx, gas, legs: list[LegResult]) -> tuple | None:
+def _dome(ctx: Ctx, gas: Gas, legs: list[LegResult]) -> tuple[tuple[float, float, float, float, float], ...] | None:
     """For the charts: the saturation dome of a pure fluid near the paths, or the phase envelope of a mixture
     (where it was traced with the mixture's own model) when a state lies inside it."""
     eos = ctx.eos
-    if isinstance(eos, Eos) and eos.mixture and getattr(eos, "envelope_curve", ()):
+    if isinstance(eos, Eos) and eos.mixture and eos.envelope_curve:
         if any(st.quality is not None for leg in legs for st in leg.path):
             return tuple(eos.envelope_curve)
         return None

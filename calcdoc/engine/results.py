@@ -61,7 +61,7 @@ class Results:
     basis: dict[str, Any] = field(default_factory=dict)
     software: dict[str, str] = field(default_factory=dict)
     extra: dict[str, Any] = field(default_factory=dict)
-    saturation: tuple[tuple[float, float, float, float], ...] | None = None            # (T, P, v, s) points of the saturation dome, for charts
+    saturation: tuple[tuple[float, float, float, float, float], ...] | None = None   # (T, P, v, s, h) of the dome, for charts
 
     @property
     def passed(self) -> bool:
