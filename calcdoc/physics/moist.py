@@ -182,6 +182,7 @@ class MoistEos(Eos):
         self.mixture = True
         self.envelope = []
         self.envelope_source = ""
+        self.envelope_curve = ()
         self.margin = 0.0
         self.findings = []
         self._recent = {}
