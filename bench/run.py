@@ -12,6 +12,10 @@ Figures and targets (see bench/RESULTS.md for the last recorded run):
 - mixtures: two-stage train of a 5-component natural gas against methane (engine)   ≤ 20×
 - sweeps: 200 separate runs against one 200-point sweep                             ≥ 20×
 - batches: 20 jobs one after another against over the cores                         ≥ 1.7× on 2 cores
+- mixtures finish: 8 natural gases (lean to rich, N2, CO2), one stage and a two-stage train, each a cold
+  `calcdoc run --no-pdf`: slowest job against 10 s ≤ 1×; flashes per stage and peak memory recorded
+
+    .venv/bin/python bench/run.py mixtures_finish   # only the figures whose function names contain the words
 """
 from __future__ import annotations
 
@@ -186,13 +190,16 @@ def bench_memory(tmp: Path) -> None:
 
 def main() -> int:
     os.chdir(ROOT)
+    only = sys.argv[1:]
     with tempfile.TemporaryDirectory() as d:
         tmp = Path(d)
-        bench_startup()
-        bench_render_and_engine(tmp)
-        bench_memory(tmp)
-        for extra in EXTRA:
-            extra(tmp)
+        for fn in [bench_startup, bench_render_and_engine, bench_memory] + EXTRA:
+            if only and not any(w in fn.__name__ for w in only):
+                continue
+            if fn is bench_startup:
+                fn()
+            else:
+                fn(tmp)
     missed = [f for f in FIGURES if not f[3]]
     print(f"\n{len(FIGURES) - len(missed)} of {len(FIGURES)} figures on target")
     return 1 if missed else 0
@@ -317,7 +324,56 @@ def bench_batch(tmp: Path) -> None:
            f"({seq:.1f} s vs {par:.1f} s)")
 
 
-EXTRA: list = [bench_flash_efficiency, bench_mixture, bench_sweep, bench_batch]
+_NG_RUN = """
+import json, resource, sys, time
+import CoolProp.CoolProp
+from calcdoc import engine, job as jobfile
+job = jobfile.load(sys.argv[1])
+t0 = time.perf_counter()
+res = engine.run(job)
+t = time.perf_counter() - t0
+codes = [getattr(w, "code", "") for w in res.warnings]
+src = [w.values["source"] for w in res.warnings if getattr(w, "code", "") == "mixture.envelope_fallback"]
+print(json.dumps({"t": t, "flashes": res.extra["eos_flashes"], "envelope": src[0] if src else "heos",
+                  "rss": resource.getrusage(resource.RUSAGE_SELF).ru_maxrss,
+                  "rss_children": resource.getrusage(resource.RUSAGE_CHILDREN).ru_maxrss}))
+"""
+
+
+def bench_mixtures_finish(tmp: Path) -> None:
+    """Eight natural gases, one stage and a two-stage train, each job in a fresh process (the envelope cache
+    cold; the time counted from after the imports, which on a loaded machine take longer than the job). The
+    slowest job against 10 s; flashes per compressor stage; peak memory of a run and of the envelope
+    processes it started (and killed where their budget ran out)."""
+    sys.path.insert(0, str(ROOT / "tests"))
+    from natural_gases import NATURAL_GASES
+
+    stage = "  - {name: Stage, process: compressor, efficiency: {polytropic: 0.78}, end: {pressure: 55 bar}}\n"
+    train = ("  - name: Train\n    process: compressor\n    efficiency: {polytropic: 0.78}\n"
+             "    staging: {stages: 2, intercooler: {temperature: 40 degC}}\n    end: {pressure: 100 bar}\n")
+    start = "{pressure: 25 bar, temperature: 40 degC, mass_flow: 5 kg/s}"
+    slowest, per_stage, rss, rss_child = 0.0, [], 0, 0
+    for name, comp in NATURAL_GASES.items():
+        gas = "{mixture: {" + ", ".join(f"{c}: {x}" for c, x in comp.items()) + "}, model: real}"
+        for kind, legs, stages in (("1 stage", stage, 1), ("2 stages", train, 2)):
+            job = tmp / f"ng_{name}_{stages}.yaml"
+            job.write_text(_flow_job(gas, start, legs, f"BENCH-NG-{name}-{stages}"))
+            out = subprocess.run([PY, "-c", _NG_RUN, str(job)], check=True, capture_output=True, text=True,
+                                 timeout=300)
+            r = json.loads(out.stdout.strip().splitlines()[-1])
+            slowest = max(slowest, r["t"])
+            per_stage.append(r["flashes"] / stages)
+            rss, rss_child = max(rss, r["rss"]), max(rss_child, r["rss_children"])
+            print(f"     {name:<11} {kind:<8}: {r['t']:5.2f} s, {r['flashes']:3d} flashes, envelope {r['envelope']}")
+    record("mixtures finish: slowest of 16 natural-gas jobs / 10 s", slowest / 10.0, "<= 1", slowest <= 10.0,
+           f"(slowest {slowest:.2f} s after imports)")
+    record("mixtures finish: equation-of-state flashes per stage (max)", max(per_stage), "recorded", True,
+           f"(min {min(per_stage):.0f})")
+    record("mixtures finish: peak RSS of a run [MiB]", rss / 1024, "recorded", True,
+           f"(envelope processes: {rss_child / 1024:.0f} MiB)")
+
+
+EXTRA: list = [bench_flash_efficiency, bench_mixture, bench_sweep, bench_batch, bench_mixtures_finish]
 
 if __name__ == "__main__":
     sys.exit(main())

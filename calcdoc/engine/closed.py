@@ -7,8 +7,10 @@ from ..job.model import Job, LegSpec
 from ..physics.calc import Calc, Term
 from ..physics.closed import LegResult, Target, closed_leg
 from ..physics.gas import Gas, State
-from .common import job_basis, make_gas, saturation_near, site_calcs, software_versions
+from .common import gas_findings, job_basis, make_gas, saturation_near, site_calcs, software_versions
 from .diagnose import ideal_condensation_warnings, phase_warnings, start_state_problem
+from .moist import moist_setup
+from .moistclosed import compute_closed_moist
 from .results import Results, StateRecord
 
 __all__ = ["NEAR_SATURATION_K", "compute_closed"]
@@ -49,6 +51,9 @@ def _phase_warnings(gas: Gas, label: Finding, states: list[State]) -> list[Findi
 def compute_closed(job: Job) -> Results:
     """Compute a closed-system job's states, legs and warnings (no design checks, no sweep)."""
     gas, gas_calcs = make_gas(job)
+    moist = moist_setup(job, gas)
+    if moist:                    # moist air: a receiver at constant volume, with its condensate
+        return compute_closed_moist(job, gas, gas_calcs, *moist)
     s1 = _start_state(job, gas)
     start_calcs = site_calcs(job) + list(gas_calcs)
     if job.start.mass is not None:
@@ -66,7 +71,7 @@ def compute_closed(job: Job) -> Results:
                                 {"m": Term("m", m, "kg"), "v": Term("v_1", s1.v, "m**3/kg")}))
     for prop, unit in (("u", "J/kg"), ("h", "J/kg"), ("s", "J/(kg*K)")):
         start_calcs.append(Calc(f"{prop}_1", getattr(s1, prop), unit, f"{prop}(P_1, T_1)", gas.eos_method))
-    warnings: list[Finding] = []
+    warnings: list[Finding] = gas_findings(job)
     legs: list[LegResult] = []
     records = [StateRecord(1, "1", s1, V=m * s1.v)]
     warnings += _phase_warnings(gas, Finding("label.start"), [s1])

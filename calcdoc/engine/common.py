@@ -17,7 +17,7 @@ from ..physics.fluids import closest_fluids
 from ..physics.gas import R_U, Gas, IdealGas, RealGas
 from .diagnose import fluid_problems
 
-__all__ = ["job_basis", "make_gas", "saturation_near", "shared_real_gas", "site_calcs", "software_versions"]
+__all__ = ["gas_findings", "job_basis", "make_gas", "saturation_near", "shared_real_gas", "site_calcs", "software_versions"]
 
 def software_versions() -> dict[str, str]:
     """The versions of calcdoc and the libraries it computes and renders with."""
@@ -54,6 +54,14 @@ def shared_real_gas(fluid: str | None, mixture: tuple[tuple[str, float], ...]) -
     """One real-gas object per fluid and process, reused by every job and sweep point that needs it
     (its CoolProp state is set afresh by every flash, so reuse does not change results)."""
     return RealGas(fluid, mixture)
+
+
+def gas_findings(job: Job) -> list[Finding]:
+    """Warnings about the gas as entered: a mixture whose fractions were normalised (showing their sum)."""
+    spec = job.gas
+    if spec.mixture and abs(spec.entered_sum - 1.0) > 1e-9:
+        return [Finding("mixture.normalised", {"basis": spec.basis, "total": spec.entered_sum}, "gas.mixture")]
+    return []
 
 
 def _ideal_gas(job: Job) -> tuple[Gas, list[Calc]]:
@@ -116,7 +124,8 @@ def site_calcs(job: Job) -> list[Calc]:
     return out
 
 
-def saturation_near(gas: Gas, legs: Sequence[LegResult]) -> tuple[tuple[float, float, float, float], ...] | None:
+def saturation_near(gas: Gas, legs: Sequence[LegResult]
+                    ) -> tuple[tuple[float, float, float, float, float], ...] | None:
     """The saturation dome for the charts when a path comes within 30 % of the critical temperature."""
     if not isinstance(gas, RealGas) or not gas.pure:
         return None

@@ -19,10 +19,13 @@ from ..physics.calc import Calc, Term
 from ..physics.closed import LegResult
 from ..physics.flowlegs import Ctx, MeasuredEndError, heat_exchanger, machine, reversible, throttle
 from ..physics.flowpath import Eos, TwoPhaseError
-from ..physics.gas import RealGas, State
+from ..physics.gas import Gas, RealGas, State
+from ..physics.moist import MoistEos
+from ..physics.moistlegs import moist_cooler
 from ..physics.staging import stage_ratio_calc, suction_pressures
-from .common import job_basis, make_gas, saturation_near, site_calcs, software_versions
+from .common import gas_findings, job_basis, make_gas, saturation_near, site_calcs, software_versions
 from .diagnose import ideal_condensation_warnings, phase_warnings
+from .moist import condensate_total, dry_flow_calc, moist_setup, moist_states, moist_warnings
 from .results import Results, StateRecord
 
 __all__ = ["FlowResults", "run_flow"]
@@ -49,11 +52,13 @@ class FlowResults(Results):
 def run_flow(job: Job) -> FlowResults:
     """Compute a steady-flow job: states, legs (with staging expanded), totals and warnings."""
     gas, gas_calcs = make_gas(job)
-    eos = Eos(gas) if isinstance(gas, RealGas) else None
-    ctx = Ctx(gas, eos, 0.0)
+    moist = moist_setup(job, gas)          # moist air: the legs run on the moist gas (dry air + water)
+    eos = moist[0] if moist else Eos(gas) if isinstance(gas, RealGas) else None
+    ctx = Ctx(moist[0].moist if moist else gas, eos, 0.0)
     warnings: list[Finding] = []
-    if eos is not None and eos.envelope_note:
-        warnings.append(Finding("gas.envelope_failed", {"detail": eos.envelope_note}))
+    if eos is not None:
+        warnings += eos.findings          # fallbacks of the phase envelope, never silent
+    warnings += gas_findings(job)         # the mixture's fractions normalised
     P1, T1 = job.start.pressure.si, job.start.temperature.si
     try:
         s1 = ctx.state(P1, T1)
@@ -61,7 +66,10 @@ def run_flow(job: Job) -> FlowResults:
         raise JobError([problem(job, Finding("start.not_computed", {"error": exc}, "start"))]) from None
     flow = _flow_calcs(job, ctx, s1)
     ctx.m_dot = flow["m_dot"].value
-    start_calcs = site_calcs(job) + list(gas_calcs) + [Calc("v_1", s1.v, "m**3/kg", "v(P_1, T_1)", gas.eos_method)]
+    start_calcs = site_calcs(job) + list(gas_calcs) + (moist[1] if moist else []) + [
+        Calc("v_1", s1.v, "m**3/kg", "v(P_1, T_1)", ctx.gas.eos_method)]
+    if moist:
+        flow["m_dot_da"] = dry_flow_calc(ctx.m_dot, moist[0].W)
     warnings += _phase_warnings(ctx, Finding("label.start"), [s1], True)
     legs: list[LegResult] = []
     staging_json = []
@@ -83,16 +91,24 @@ def run_flow(job: Job) -> FlowResults:
         for res in made:
             warnings += _phase_warnings(ctx, Finding("label.leg", {"leg": res.name}), list(res.path),
                                         res.process in ("cooler", "throttle", "expander"))
-            if res.process == "throttle" and res.end.quality is not None:
+            if res.end.quality is not None:
                 e = res.end
-                warnings.append(Finding("throttle.two_phase_outlet", {"leg": res.name, "P": e.P, "T": e.T,
-                                                                     "x": e.quality}))
+                warnings.append(Finding("flow.two_phase_outlet", {"leg": res.name, "P": e.P, "T": e.T,
+                                                                  "x": e.quality}))
             legs.append(res)
             s = res.end
-    records = tuple(StateRecord(k + 1, str(k + 1), st, V_dot=ctx.m_dot * st.v)
-                    for k, st in enumerate([s1] + [leg.end for leg in legs]))
+    states = [s1] + [leg.end for leg in legs]
+    hums, flows = (moist_states(moist[0].W, flow["m_dot"].value, states, legs) if moist else
+                   ([None] * len(states), [ctx.m_dot] * len(states)))
+    if moist:
+        warnings += moist_warnings(legs, [h for h in hums if h is not None])
+    records = tuple(StateRecord(k + 1, str(k + 1), st, V_dot=m * st.v, humidity=hum)
+                    for k, (st, m, hum) in enumerate(zip(states, flows, hums, strict=True)))
     warnings += ideal_condensation_warnings(job, gas, legs, s1)   # ideal model of a named fluid: Z, condensation
     totals = _totals(legs)
+    cond = condensate_total(legs) if moist else None
+    if cond is not None:
+        totals += (cond,)
     basis = job_basis(job, gas)
     basis["flow"] = {"standard": None if job.start.standard_volume_flow is None else {
         "pressure": {"value": job.start.standard_pressure.si, "unit": "Pa"},
@@ -101,9 +117,12 @@ def run_flow(job: Job) -> FlowResults:
     if staging_json:
         extra["staging"] = staging_json
     if eos is not None:
-        extra["eos_flashes"] = gas.flashes
+        extra["eos_flashes"] = getattr(gas, "flashes", 0) + (moist[0].moist.flashes if moist else 0)  # type: ignore[assignment]
+    if moist:
+        basis["gas"]["moist"] = {"model": "ideal mixture of the dry-air model and water vapour",
+                                 "humidity_ratio_start": moist[0].W}
     return FlowResults(job, gas, "flow", None, flow, records, tuple(legs), tuple(start_calcs), (), tuple(warnings),
-                       basis, software_versions(), extra, saturation_near(gas, legs), totals=totals)
+                       basis, software_versions(), extra, _dome(ctx, gas, legs), totals=totals)
 
 
 def _flow_calcs(job: Job, ctx: Ctx, s1: State) -> dict[str, Calc]:
@@ -166,7 +185,7 @@ def _leg(job: Job, ctx: Ctx, leg: LegSpec, opt: LegOptions, i: int, s: State) ->
     if proc in ("cooler", "heater"):
         T2 = leg.end["temperature"].si
         P2, dcalc = _drop(job, opt.drop, i, s.P)
-        return [heat_exchanger(ctx, leg.name, proc, i, s, P2, T2, dcalc)], {}
+        return [_exchanger(ctx, leg.name, proc, i, s, P2, T2, dcalc)], {}
     P2 = _end_pressure(job, leg, s)
     if proc == "throttle":
         return [throttle(ctx, leg.name, i, s, P2)], {}
@@ -179,6 +198,14 @@ def _leg(job: Job, ctx: Ctx, leg: LegSpec, opt: LegOptions, i: int, s: State) ->
         return _staged(job, ctx, leg, opt.staging, i, s, P2, eta_p, eta_s, eta_m)
     T2m = leg.end["temperature"].si if "temperature" in leg.end else None
     return [machine(ctx, leg.name, proc, i, s, P2, eta_p, eta_s, eta_m, T2m)], {}
+
+
+def _exchanger(ctx: Ctx, name: str, proc: str, i: int, s: State, P2: float, T2: float, dcalc: Calc | None
+               ) -> LegResult:
+    """A cooler or heater; of moist air, one that drains condensate below the dew point."""
+    if isinstance(ctx.eos, MoistEos):
+        return moist_cooler(ctx, name, proc, i, s, P2, T2, dcalc)
+    return heat_exchanger(ctx, name, proc, i, s, P2, T2, dcalc)
 
 
 def _drop(job: Job, drop, i: int, P1: float) -> tuple[float, Calc | None]:
@@ -213,7 +240,7 @@ def _train(job, ctx, leg, st: Staging, N, i, s, P_out, eta_p, eta_s, eta_m) -> l
                 raise _problem_at(job, st.T_cool, Finding("intercooler.above_discharge",
                                                           {"entered": st.T_cool.entered, "k": k + 1, "T": s.T}))
             P2, dc = _drop(job, d, i, s.P)
-            hx = heat_exchanger(ctx, f"{leg.name}, intercooler {k + 1}", "cooler", i, s, P2, st.T_cool.si, dc)
+            hx = _exchanger(ctx, f"{leg.name}, intercooler {k + 1}", "cooler", i, s, P2, st.T_cool.si, dc)
             out.append(hx)
             s, i = hx.end, i + 1
     return out
@@ -290,11 +317,22 @@ def _totals(legs: list[LegResult]) -> tuple[Calc, ...]:
     return tuple(out)
 
 
+def _dome(ctx: Ctx, gas: Gas, legs: list[LegResult]) -> tuple[tuple[float, float, float, float, float], ...] | None:
+    """For the charts: the saturation dome of a pure fluid near the paths, or the phase envelope of a mixture
+    (where it was traced with the mixture's own model) when a state lies inside it."""
+    eos = ctx.eos
+    if isinstance(eos, Eos) and eos.mixture and eos.envelope_curve:
+        if any(st.quality is not None for leg in legs for st in leg.path):
+            return tuple(eos.envelope_curve)
+        return None
+    return saturation_near(gas, legs)
+
+
 def _phase_warnings(ctx: Ctx, label: Finding, states: list[State], check_all: bool) -> list[Finding]:
     """Warnings for states in or near the two-phase region: pure fluids against the saturation
     temperature, mixtures against the dew temperature of the phase envelope."""
     eos = ctx.eos
-    if eos is None:
+    if eos is None or isinstance(eos, MoistEos):   # moist air: its own warnings (engine.moist)
         return []
     liquid = [s for s in states if s.phase in ("two-phase", "liquid", "supercritical liquid")]
     pick = liquid or (states if (eos.mixture or check_all) else [states[0], states[-1]])

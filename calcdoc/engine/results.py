@@ -24,6 +24,7 @@ class StateRecord:
     state: State
     V: float | None = None         # volume of the fixed mass [m3] (closed system)
     V_dot: float | None = None     # actual volume flow [m3/s] (steady flow)
+    humidity: Any = None           # moist air: physics.moist.Humidity (W, p_v, T_dew, phi)
 
 
 @dataclass(frozen=True)
@@ -60,7 +61,7 @@ class Results:
     basis: dict[str, Any] = field(default_factory=dict)
     software: dict[str, str] = field(default_factory=dict)
     extra: dict[str, Any] = field(default_factory=dict)
-    saturation: tuple[tuple[float, float, float, float], ...] | None = None            # (T, P, v, s) points of the saturation dome, for charts
+    saturation: tuple[tuple[float, float, float, float, float], ...] | None = None   # (T, P, v, s, h) of the dome, for charts
 
     @property
     def passed(self) -> bool:
@@ -100,6 +101,17 @@ def state_json(rec: StateRecord) -> dict[str, Any]:
            "u": q(s.u, "J/kg"), "h": q(s.h, "J/kg"), "s": q(s.s, "J/(kg*K)"), "Z": q(s.Z, ""), "phase": s.phase}
     if s.quality is not None:
         out["quality"] = q(s.quality, "")
+        out["vapour_fraction"] = {**q(s.quality, ""), "basis": "mass"}
+        out["Z"] = q(None, "")
+        if s.rho_liquid is not None:
+            out["rho_liquid"] = q(s.rho_liquid, "kg/m**3")
+            out["rho_vapour"] = q(s.rho_vapour, "kg/m**3")
+    hum = rec.humidity
+    if hum is not None:
+        out["humidity_ratio"] = q(hum.W, "")
+        out["vapour_partial_pressure"] = q(hum.p_v, "Pa")
+        out["dew_point"] = q(hum.T_dew, "K")
+        out["relative_humidity"] = q(hum.phi, "")
     if rec.V is not None:
         out["V"] = q(rec.V, "m**3")
     if rec.V_dot is not None:

@@ -15,13 +15,13 @@ from pathlib import Path
 
 from .. import units
 from ..errors import Finding, JobError, Problem
-from ..physics.fluids import closest_fluids, is_mixture_string, known_fluid
+from ..physics.fluids import closest_fluids, component_name, is_mixture_string, known_fluid, molar_mass
 from .displayunits import base_system, read_units
 from .files import read_regular
 from .flowopts import FLOW_OPTION_KEYS, chain_problems, read_options
 from .limits import Places, read_limits
 from .messages import found_text, valid_text
-from .model import GasSpec, Input, Job, LegSpec, Site, StartSpec, TitleBlock, keys_of
+from .model import HUMIDITY_KEYS, GasSpec, Input, Job, LegSpec, Site, StartSpec, TitleBlock, keys_of
 from .reader import Reader, describe as _describe
 from .solve import read_solve
 from .source import MAX_BYTES as _MAX_BYTES, Node, decode, leaves, load as _load_yaml
@@ -182,6 +182,28 @@ class _Validator(Reader):
         if node is None:
             return Site(None, "not given")
         m = self.mapping(node, keys_of(Site), what="the site")
+        rh = self._humidity(m, "relative_humidity") if "relative_humidity" in m else None
+        site = self._site_atmosphere(node, m)
+        return dataclasses.replace(site, relative_humidity=rh) if rh is not None else site
+
+    def _humidity(self, m: dict[str, Node], key: str) -> Input | None:
+        """A humidity input: relative humidity as a fraction or percent (0 to 100 %), a dew point, or a
+        humidity ratio in kg of water per kg of dry air."""
+        if key == "dew_point":
+            return self.quantity(m[key], "temperature")
+        q = self.quantity(m[key], "dimensionless", positive=False, allow_percent=(key == "relative_humidity"))
+        if q is None:
+            return None
+        if key == "relative_humidity" and not 0.0 <= q.si <= 1.0:
+            self.add(m[key], f"a relative humidity of {q.entered}", "give 0 to 100 % (or a fraction 0 to 1)")
+            return None
+        if key == "humidity_ratio" and not 0.0 <= q.si < 1.0:
+            self.add(m[key], f"a humidity ratio of {q.entered}",
+                     "give kg of water vapour per kg of dry air, for example 0.012")
+            return None
+        return q
+
+    def _site_atmosphere(self, node: Node, m: dict[str, Node]) -> Site:
         if "atmosphere" in m and "elevation" in m:
             self.add(node, "both atmosphere and elevation are given", "give one: the measured atmosphere or the elevation")
         if "atmosphere" in m:
@@ -216,28 +238,41 @@ class _Validator(Reader):
         m = self.mapping(node, keys_of(GasSpec), required=("model",), what="the gas")
         model = self.enum(m.get("model"), ("real", "ideal"))
         fluid = self.text(m.get("fluid")) or None
+        basis = self.enum(m.get("basis"), ("mole", "mass")) if "basis" in m else "mole"
+        if "basis" in m and "mixture" not in m:
+            self.add(m["basis"], "basis is given without a mixture", "remove basis, or give mixture: {...}")
         mixture: list[tuple[str, float]] = []
+        total = 1.0
         if "mixture" in m:
             mm = m["mixture"]
             if mm.kind != "map" or not mm.value:
-                self.add(mm, f"expected component: mole fraction pairs, found {_describe(mm)}",
-                         "write for example mixture: {Methane: 0.9, Ethane: 0.1}")
+                self.add(mm, f"expected component: fraction pairs, found {_describe(mm)}",
+                         "write for example mixture: {Methane: 0.9, Ethane: 0.1} or {C1: 0.9, C2: 0.1}")
             elif _looks_like_percent(mm):
-                self.add(mm, "the mole fractions sum to about 100: they look like percentages",
-                         "write mole fractions that sum to 1 (for example 92 % → 0.92)")
+                self.add(mm, "the fractions sum to about 100: they look like percentages",
+                         "write fractions that sum to 1 (for example 92 % → 0.92)")
             else:
                 for comp, xnode in mm.value.items():
                     self.where[xnode.path] = xnode.where
-                    x = self.number(xnode, 0.0, 1.0, lo_open=True, what="a mole fraction")
+                    x = self.number(xnode, 0.0, 1.0, lo_open=True, what=f"a {basis or 'mole'} fraction")
                     if x is not None:
-                        mixture.append((comp, x))
+                        mixture.append((component_name(comp), x))
+                names = [c for c, _ in mixture]
+                if len(set(names)) < len(names):
+                    dup = sorted({c for c in names if names.count(c) > 1})
+                    self.add(mm, f"a component is given twice (by its name and its short name?): {', '.join(dup)}",
+                             "give each component once")
                 total = sum(x for _, x in mixture)
-                if len(mixture) == len(mm.value) and abs(total - 1.0) > 1e-4:
-                    self.add(mm, f"the mole fractions sum to {total:.6g}", "mole fractions must sum to 1 (within 1e-4)")
-                if len(mixture) == len(mm.value) and abs(total - 1.0) <= 1e-4:
+                if len(mixture) == len(mm.value) and abs(total - 1.0) > MIXTURE_SUM_TOL * (1 + 1e-9):
+                    self.add(mm, f"the {basis or 'mole'} fractions sum to {total:.6g}",
+                             f"fractions must sum to 1 (within {MIXTURE_SUM_TOL:g}; they are then normalised)")
+                elif len(mixture) == len(mm.value):
                     mixture = [(c, x / total) for c, x in mixture]
-        names = ([(m["fluid"], fluid, "fluid.unknown")] if fluid else []) + \
-            [(mm.value[c], c, "fluid.unknown_component") for c, _ in mixture]
+                    if basis == "mass":
+                        mixture = _mole_fractions(mixture)
+        names = [(m["fluid"], fluid, "fluid.unknown")] if fluid else []
+        if "mixture" in m and m["mixture"].kind == "map":
+            names += [(xnode, component_name(c), "fluid.unknown_component") for c, xnode in m["mixture"].value.items()]
         for at, nm, code in names:
             if not known_fluid(nm):
                 f = Finding("fluid.mixture_string" if is_mixture_string(nm) else code,
@@ -267,7 +302,8 @@ class _Validator(Reader):
                          "add k: 1.4 and molar_mass: 28.97 g/mol, or name the fluid to take them from")
         if model is None:
             return None
-        return GasSpec(model=model, fluid=fluid, mixture=tuple(mixture), k=k, molar_mass=molar_mass, R=R)
+        return GasSpec(model=model, fluid=fluid, mixture=tuple(mixture), k=k, molar_mass=molar_mass, R=R,
+                       basis=basis or "mole", entered_sum=total)
 
     def start(self, node: Node | None, system: str | None) -> StartSpec | None:
         if node is None:
@@ -277,7 +313,8 @@ class _Validator(Reader):
         m = self.mapping(node, keys, required=("pressure", "temperature"), what="the start state")
         P = self.quantity(m.get("pressure"), "pressure")
         T = self.quantity(m.get("temperature"), "temperature")
-        kinds = {f.name: f.metadata["kind"] for f in fields(StartSpec) if f.name not in ("pressure", "temperature")}
+        kinds = {f.name: f.metadata["kind"] for f in fields(StartSpec)
+                 if f.name not in ("pressure", "temperature") + HUMIDITY_KEYS}
         vals = {k: self.quantity(m.get(k), kinds[k]) for k in kinds if k in keys}
         amount = [k for k in (("mass_flow", "molar_flow", "volume_flow", "standard_volume_flow") if system == "flow"
                               else ("volume", "mass")) if k in m]
@@ -299,6 +336,12 @@ class _Validator(Reader):
                              path=f"{node.path}.{k}")
                 if not has_std and k in m:
                     self.add(m[k], f"{k} is given without a standard_volume_flow", "remove it or give standard_volume_flow")
+        given = [k for k in HUMIDITY_KEYS if k in m]
+        if len(given) > 1:
+            self.add(node, f"more than one humidity is given: {', '.join(given)}",
+                     "give one of relative_humidity, dew_point or humidity_ratio")
+        for k in given[:1]:
+            vals[k] = self._humidity(m, k)
         if P is None or T is None:
             return None
         return StartSpec(P, T, **{k: v for k, v in vals.items()})
@@ -447,6 +490,21 @@ def _iso_date(text: str) -> bool:
     except ValueError:
         return False
     return len(text.strip()) == 10
+
+
+#: A mixture whose fractions sum to 1 within this is normalised (with a warning showing the sum).
+MIXTURE_SUM_TOL = 1e-3
+
+
+def _mole_fractions(mass: list[tuple[str, float]]) -> list[tuple[str, float]]:
+    """Mass fractions → mole fractions, x_i = (w_i/M_i) / Σ(w_j/M_j); unchanged where a component is unknown
+    (the fluid check names it)."""
+    Ms = [molar_mass(c) for c, _ in mass]
+    known = [M for M in Ms if M is not None]
+    if len(known) < len(Ms):
+        return mass
+    n = [w / M for (_, w), M in zip(mass, known, strict=True)]
+    return [(c, ni / sum(n)) for (c, _), ni in zip(mass, n, strict=True)]
 
 
 def _looks_like_percent(mm: Node) -> bool:

@@ -88,7 +88,8 @@ MESSAGES: dict[str, tuple[str, str]] = {
                                     "check standard_pressure and standard_temperature"),
     "leg.two_phase": ("leg '{leg}' ({process}): {error}",
                       "this leg kind is computed for a single phase only: end it above the saturation pressure, start "
-                      "it warmer, or use a throttle (which gives a two-phase outlet)"),
+                      "it warmer, or use a throttle (which gives a two-phase outlet); an expander given an isentropic "
+                      "efficiency may end two-phase"),
     "leg.measured": ("leg '{leg}': {error}", "=error"),
     "leg.flow_failed": ("leg '{leg}': {error}",
                         "check the end target, the efficiency and the gas against the start of this leg"),
@@ -137,6 +138,25 @@ MESSAGES: dict[str, tuple[str, str]] = {
                        "use model: ideal for the mixture (with k and molar_mass), or a pure fluid"),
     "vessel.empty": ("leg '{leg}': the vessel empties completely at t = {t:.6g} s",
                      "end the leg at a pressure above the back pressure"),
+    "moist.not_air": ("{key} is given for {fluid}", "humidity applies to moist air: set gas: {{fluid: Air}} (the "
+                                                    "dry air; water is tracked separately), or remove {key}"),
+    "moist.closed_process": ("leg '{leg}' ({process}) on moist air in a closed system",
+                             "moist air in a closed system is computed for a receiver: process: isochoric with "
+                             "end: {{temperature: ...}}; other closed processes are for dry gas in this version"),
+    "moist.ice": ("the end temperature {T:K~4} is below 0.01 °C with water condensing (dew point {T_dew:K~4}): "
+                  "it would freeze", "give an end temperature of at least 0.01 °C; ice is outside this model"),
+    "moist.receiver_pressure": ("the pressure of the receiver at its end temperature did not converge",
+                                "check the end temperature against the start state"),
+    "moist.saturation_range": ("the air temperature {T:K~4} is outside the saturation range of liquid water used "
+                               "for moist air (0.01 °C to the critical point; below it water would freeze)",
+                               "give a start temperature and dew point of at least 0.01 °C"),
+    "moist.supersaturated_start": ("the start state holds more water than saturated air can at {T:K~4} and {P:Pa}",
+                                   "give a humidity at or below saturation (relative humidity up to 100 %)"),
+    "moist.dew_above_T": ("the dew point {T_dew:K~4} is above the start temperature {T:K~4}",
+                          "give a dew point at or below the start temperature"),
+    "eos.wet_not_computed": ("the state at P = {P:Pa~6} with {state} could not be computed", ""),
+    "eos.wet_not_found": ("no state at P = {P:Pa~6} with {state} was found near {T:K~5}", ""),
+    "eos.wet_not_converged": ("the state at P = {P:Pa~6} with {state} did not converge in {n} flashes", ""),
 }
 
 _Speaker = Callable[[dict[str, Any], Units], tuple[str, str]]

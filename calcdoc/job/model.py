@@ -16,7 +16,7 @@ from ..errors import Problem
 from ..units import DisplayUnits
 from .quantities import Quantity
 
-__all__ = ["Drop", "FollowSpec", "GasSpec", "Input", "Job", "LegOptions", "LegSpec", "LimitSpec", "Site",
+__all__ = ["HUMIDITY_KEYS", "Drop", "FollowSpec", "GasSpec", "Input", "Job", "LegOptions", "LegSpec", "LimitSpec", "Site",
            "SolveSpec", "Staging", "StartSpec", "SweepSpec", "TitleBlock", "VesselLegSpec", "VesselSpec", "WallSpec"]
 
 
@@ -92,6 +92,8 @@ class Site:
     source: str                  # "given", "standard atmosphere at elevation" or "not given"
     atmosphere: Input | None = key("pressure", "absolute barometric pressure at the site")
     elevation: Input | None = key("length", "elevation above sea level (standard atmosphere)")
+    relative_humidity: Input | None = key("fraction", "relative humidity of the site's air (0 to 100 %), "
+                                          "for moist-air jobs whose start state gives none", ("flow",))
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -100,10 +102,13 @@ class GasSpec:
 
     model: str = text_key("real (CoolProp) or ideal", MISSING, "choice")
     fluid: str | None = text_key("a CoolProp fluid name", None)
-    mixture: tuple[tuple[str, float], ...] = text_key("component: mole fraction", (), "mixture")
+    mixture: tuple[tuple[str, float], ...] = text_key("component (CoolProp or short name): fraction; kept as "
+                                                      "(CoolProp name, mole fraction), normalised", (), "mixture")
+    basis: str = text_key("basis of the mixture's fractions: mole (default) or mass", "mole", "basis")
     k: Input | None = key("dimensionless", "heat capacity ratio (ideal gas)")
     molar_mass: Input | None = key("molar_mass", "molar mass (ideal gas)")
     R: Input | None = key("specific_gas_constant", "specific gas constant (ideal gas)")
+    entered_sum: float = 1.0                    # the sum of the fractions as entered (not a key)
 
 
 @dataclass(frozen=True)
@@ -122,6 +127,21 @@ class StartSpec:
     standard_pressure: Input | None = key("pressure", "reference pressure of the standard volume flow", ("flow",))
     standard_temperature: Input | None = key("temperature", "reference temperature of the standard volume flow",
                                              ("flow",))
+    relative_humidity: Input | None = key("fraction", "moist air: relative humidity (0 to 100 %)")
+    dew_point: Input | None = key("temperature", "moist air: dew point")
+    humidity_ratio: Input | None = key("dimensionless", "moist air: kg of water vapour per kg of dry air")
+
+    @property
+    def humidity(self) -> tuple[str, Input] | None:
+        """The humidity input of the start state: (key, input), or None."""
+        for k in HUMIDITY_KEYS:
+            if getattr(self, k) is not None:
+                return k, getattr(self, k)
+        return None
+
+
+#: The start state's humidity inputs of moist air.
+HUMIDITY_KEYS = ("relative_humidity", "dew_point", "humidity_ratio")
 
 
 @dataclass(frozen=True)

@@ -32,6 +32,7 @@ _BY_KIND: dict[str, dict[str, Any]] = {
                                            "properties": {"revision": _TEXT, "date": _TEXT, "description": _TEXT},
                                            "required": ["revision", "date", "description"]}},
     "choice": {"enum": ["real", "ideal"]},
+    "basis": {"enum": ["mole", "mass"]},
     "mixture": {"type": "object", "additionalProperties": {"type": "number", "exclusiveMinimum": 0, "maximum": 1}},
     "dimensionless": {"type": "number"},
 }

@@ -50,6 +50,10 @@ class Ctx:
         p = self.point(P, T)
         return p.state if isinstance(p, Point) else p
 
+    def state_any(self, P: float, T: float) -> State:
+        """The state at (P, T), two-phase allowed (a mixture inside its envelope)."""
+        return self.eos.state_any(P, T) if self.eos is not None else self.gas.state_PT(P, T)
+
 
 def _t(sym: str, i: int, value: float, unit: str) -> Term:
     return Term(f"{sym}_{i}", value, unit)
@@ -95,11 +99,16 @@ def machine(ctx: Ctx, name: str, process: str, i: int, s1: State, P2: float, eta
              {"h2": _t("h", j, s2.h, "J/kg"), "h1": _t("h", i, s1.h, "J/kg")})
     HS = Calc("H_s", Hs, "J/kg", "{h2s} − {h1}", "flow.head_isentropic",
               {"h2s": Term(f"h_{j}s", s2s.h, "J/kg"), "h1": _t("h", i, s1.h, "J/kg")})
+    q = {"work_in": W, "head_isentropic": HS, "eta_s": eta_s}
+    calcs += [W, HS]
+    if eta_p is None:       # a wet expander end: no polytropic head, exponent or Schultz comparison
+        _power(ctx, q, calcs, w, comp, eta_m)
+        return LegResult(name, process, i, s1, s2, q, tuple(calcs), tuple(path), (), tuple(facts))
     Hp = eta_p.value * w if comp else w / eta_p.value
     HP = Calc("H_p", Hp, "J/kg", "{eta}·{w}" if comp else "{w}/{eta}", "flow.head_polytropic",
               {"eta": Term("η_p", eta_p.value, ""), "w": Term("w_in", w, "J/kg")},
               note="polytropic_head")
-    calcs += [W, HS, HP]
+    calcs.append(HP)
     n = _n_calc(i, s1, s2)
     if n is not None:
         calcs.append(n)
@@ -181,8 +190,17 @@ def _check_measured(comp: bool, P2: float, T1: float, T2: float, T2s: float) -> 
                                T2=T2, T2s=T2s, P2=P2, T1=T1)
 
 
-def _isentropic_end(ctx: Ctx, s1: State, P2: float, T_guess: float) -> Point:
-    return solve_T(ctx.eos, P2, T_guess, "s", s1.s, {"s": s1.s})
+def _isentropic_end(ctx: Ctx, s1: State, P2: float, T_guess: float, wet_ok: bool = False) -> Point:
+    """The isentropic end state at P2; an expander's may be two-phase (``wet_ok``)."""
+    what = {"s": s1.s}
+    if wet_ok:
+        return _as_point(ctx.eos.flash_P(P2, "s", s1.s, T_guess, what))
+    return solve_T(ctx.eos, P2, T_guess, "s", s1.s, what)
+
+
+def _as_point(st: State) -> Point:
+    """A state as a path point; a two-phase state has no single-phase cp or (∂v/∂T)_P."""
+    return Point(st, math.nan, math.nan)
 
 
 def _machine_real(ctx, comp, i, s1, P2, r, eta_p, eta_s, T2m, facts):
@@ -203,7 +221,7 @@ def _machine_real(ctx, comp, i, s1, P2, r, eta_p, eta_s, T2m, facts):
         p2s = _isentropic_end(ctx, s1, P2, guess)
         eps = None
     else:
-        p2s = _isentropic_end(ctx, s1, P2, s1.T * r ** (R / p1.cp))
+        p2s = _isentropic_end(ctx, s1, P2, s1.T * r ** (R / p1.cp), wet_ok=not comp)
         if eta_s is not None:
             Hs = p2s.state.h - s1.h
             h2 = s1.h + (Hs / eta_s if comp else eta_s * Hs)
@@ -212,12 +230,21 @@ def _machine_real(ctx, comp, i, s1, P2, r, eta_p, eta_s, T2m, facts):
                               {"h1": _t("h", i, s1.h, "J/kg"), "h2s": Term(f"h_{j}s", p2s.state.h, "J/kg"),
                                "eta": Term("η_s", eta_s, "")}))
             T_guess = s1.T + (p2s.state.T - s1.T) / (eta_s if comp else 1 / eta_s)
-            p2 = solve_T(eos, P2, T_guess, "h", h2, {"h": h2})
+            if comp:
+                p2 = solve_T(eos, P2, T_guess, "h", h2, {"h": h2})
+            else:
+                p2 = _as_point(eos.flash_P(P2, "h", h2, T_guess, {"h": h2}))
             calcs.append(Calc(f"T_{j}", p2.state.T, "K", f"T(P_{j}, h_{j})", "eos.real"))
         else:
             _check_measured(comp, P2, s1.T, T2m, p2s.state.T)
             p2 = eos.pt(P2, T2m)
             calcs.append(Calc(f"T_{j}", T2m, "K", "{T2}", "input", {"T2": _t("T", j, T2m, "K")}, note="measured"))
+        if p2.state.quality is not None:
+            # a wet end: no single-phase path of constant polytropic efficiency reaches it
+            s2 = p2.state
+            calcs.append(Calc(f"x_{j}", s2.quality, "", f"x(P_{j}, h_{j})", "eos.real", note="flow.vapour_fraction"))
+            facts.append(Finding("flow.wet_expander_end", {"x": s2.quality, "T": s2.T, "P": s2.P}))
+            return _machine_real_wet(calcs, i, s1, p2.state, p2s.state, eta_s, facts)
         eta_p, path, steps = _eta_p_from_end(ctx, comp, p1, p2, p2s)
         calcs.append(Calc("η_p", eta_p, "", "~eta_p_compressor" if comp else "~eta_p_expander",
                           "flow.direct", {"i": Term("i", float(i), ""), "T2": _t("T", j, p2.state.T, "K"),
@@ -238,6 +265,24 @@ def _machine_real(ctx, comp, i, s1, P2, r, eta_p, eta_s, T2m, facts):
                                                                        {"e": Term("η_p", eta_p, "")})
     facts.append(Finding("flow.real_path", {"flashes": gas.flashes - f0}))
     return s2, s2s, epc, eps, path, calcs
+
+
+def _machine_real_wet(calcs: list[Calc], i: int, s1: State, s2: State, s2s: State, eta_s: float | None,
+                      facts: list[Finding]) -> tuple[State, State, None, Calc, list[State], list[Calc]]:
+    """The end of an expander with a two-phase outlet: efficiencies on enthalpy differences only."""
+    j = i + 1
+    calcs.append(Calc(f"T_{j}s", s2s.T, "K", f"T(P_{j}, s = s_{i})", "eos.real", note="isentropic_end"))
+    if s2s.quality is not None:
+        calcs.append(Calc(f"x_{j}s", s2s.quality, "", f"x(P_{j}, s = s_{i})", "eos.real",
+                          note="flow.vapour_fraction"))
+    if eta_s is None:
+        w, Hs = s2.h - s1.h, s2s.h - s1.h
+        eps = Calc("η_s", w / Hs, "", "({h2} − {h1})/({h2s} − {h1})", "flow.eta_s",
+                   {"h2s": Term(f"h_{j}s", s2s.h, "J/kg"), "h1": _t("h", i, s1.h, "J/kg"), "h2": _t("h", j, s2.h, "J/kg")})
+    else:
+        eps = Calc("η_s", eta_s, "", "{e}", "input", {"e": Term("η_s", eta_s, "")})
+    calcs.append(eps)
+    return s2, s2s, None, eps, [s1, s2], calcs
 
 
 def _eta_p_from_end(ctx: Ctx, comp: bool, p1: Point, p2: Point, p2s: Point) -> tuple[float, list[State], int]:
@@ -311,9 +356,9 @@ def heat_exchanger(ctx: Ctx, name: str, process: str, i: int, s1: State, P2: flo
     """A cooler or heater from s1 to (P2, T2): q_in = h2 − h1, no shaft work (first law for steady flow)."""
     j = i + 1
     gas = ctx.gas
-    path = [s1] + [ctx.state(s1.P + (P2 - s1.P) * x, s1.T + (T2 - s1.T) * x)
+    path = [s1] + [ctx.state_any(s1.P + (P2 - s1.P) * x, s1.T + (T2 - s1.T) * x)
                    for x in (k / PATH_POINTS for k in range(1, PATH_POINTS))]
-    s2 = ctx.state(P2, T2)
+    s2 = ctx.state_any(P2, T2)
     path.append(s2)
     calcs = [drop_calc] if drop_calc is not None else []
     calcs += _h_calcs(gas, [(str(i), s1), (str(j), s2)])
@@ -344,14 +389,14 @@ def throttle(ctx: Ctx, name: str, i: int, s1: State, P2: float) -> LegResult:
     else:
         path, T = [s1], s1.T
         for P in _path_P(s1.P, P2, 4) + [P2]:
-            p = solve_T(ctx.eos, P, T, "h", s1.h, {"h": s1.h})
-            T = p.state.T
-            path.append(p.state)
+            st = ctx.eos.flash_P(P, "h", s1.h, T, {"h": s1.h})
+            T = st.T
+            path.append(st)
         s2 = path[-1]
         note = "throttle_eos"
     wet = s2.quality is not None
     if wet:
-        note = "throttle_wet"
+        note = "throttle_wet" if getattr(ctx.gas, "pure", True) else "throttle_wet_mixture"
     calcs = [Calc(f"h_{j}", s1.h, "J/kg", "{h1}", "flow.throttle", {"h1": _t("h", i, s1.h, "J/kg")},
                   note="throttle_h"),
              Calc(f"T_{j}", s2.T, "K", f"T(P_{j}, h_{j})", ctx.gas.eos_method, note=note)]
@@ -361,8 +406,8 @@ def throttle(ctx: Ctx, name: str, i: int, s1: State, P2: float) -> LegResult:
     facts_wet = []
     if wet:
         calcs.append(Calc(f"x_{j}", s2.quality, "", f"x(P_{j}, h_{j})", ctx.gas.eos_method,
-                          note="quality"))
-        facts_wet.append(Finding("throttle.two_phase", {"x": s2.quality, "T": s2.T}))
+                          note="flow.vapour_fraction"))
+        facts_wet.append(Finding("leg.two_phase_outlet", {"x": s2.quality, "T": s2.T, "P": s2.P}))
     zero_w = Calc("w_in", 0.0, "J/kg", "0", "flow.throttle")
     zero = Calc("Q̇", 0.0, "W", "0", "flow.throttle")
     facts = [Finding("throttle.dT", {"dT": s2.T - s1.T})] + facts_wet

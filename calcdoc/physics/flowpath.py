@@ -25,9 +25,13 @@ import math
 from dataclasses import dataclass
 
 from ..errors import Finding, PhysicsError
+from .envelope import HEOS_BUDGET_S, PR_MARGIN_K, phase_envelope
 from .gas import _PHASES, RealGas, State
 
 __all__ = ["Eos", "Point", "TwoPhaseError", "polytropic_path", "solve_T"]
+
+#: Most flashes with the phase-stability test spent on one two-phase state of a mixture.
+WET_ITERATIONS = 40
 
 #: Local error per step in enthalpy, relative to the estimated enthalpy change of the path.
 STEP_RTOL = 2e-6
@@ -74,15 +78,24 @@ class Eos:
         self.CP = gas._CP
         self.mixture = not gas.pure
         self.envelope: list[tuple[float, float]] = []   # (T, P) along the phase envelope
-        self.envelope_note = ""
+        self.envelope_source = ""                       # 'heos', 'pr' or 'none' (mixtures)
+        self.envelope_curve: tuple[tuple[float, float, float, float, float], ...] = ()
+        self.margin = 0.0                               # room on the gas side of the envelope [K]
+        self.findings: list[Finding] = []               # fallbacks taken, for the report's warnings
         self._recent: dict[tuple[float, float], Point] = {}   # states already flashed (a leg's start)
         if self.mixture:
-            try:
-                self.AS.build_phase_envelope("")
-                d = self.AS.get_phase_envelope_data()
-                self.envelope = [(float(T), float(P)) for T, P in zip(d.T, d.p) if T > 0 and P > 0]
-            except ValueError as exc:   # CoolProp raises ValueError for a failed envelope
-                self.envelope_note = str(exc)[:120]   # CoolProp's reason the envelope could not be traced
+            comps = tuple(c for c, _ in gas.mixture)
+            x = tuple(f for _, f in gas.mixture)
+            env = phase_envelope(comps, x)
+            self.envelope = list(env.points)
+            self.envelope_source = env.source
+            self.envelope_curve = env.curve if env.source == "heos" else ()   # (T, P, v, s, h) for the charts
+            self.margin = env.margin
+            spent = {m: outcome for m, outcome, _ in env.tried}
+            if env.source != "heos":
+                outcome = "the tracer did not finish" if spent["heos"] == "timeout" else "the tracer failed"
+                self.findings.append(Finding("mixture.envelope_fallback", {
+                    "outcome": outcome, "budget": HEOS_BUDGET_S, "source": env.source, "margin": PR_MARGIN_K}))
         if self.envelope:
             i = max(range(len(self.envelope)), key=lambda k: self.envelope[k][1])
             self.T_cricondenbar, self.P_cricondenbar = self.envelope[i]
@@ -106,12 +119,13 @@ class Eos:
         """True where the envelope shows a mixture state is single-phase on the gas side."""
         if not self.envelope:
             return False
-        if T > self.T_cricondentherm:
+        m = self.margin
+        if T > self.T_cricondentherm + m:
             return True
-        if P > self.P_cricondenbar:
-            return T >= self.T_cricondenbar
+        if P > self.P_cricondenbar * (1.0 + m / 100.0):
+            return T >= self.T_cricondenbar + m
         dew = self.dew_temperature(P)
-        return dew is not None and T > dew
+        return dew is not None and T > dew + m
 
     def saturation(self, P: float) -> tuple[float, dict, dict] | None:
         """Pure fluids below the critical pressure: (T_sat, saturated liquid, saturated vapour), each
@@ -202,6 +216,110 @@ class Eos:
         if not (math.isfinite(cp) and cp > 0 and math.isfinite(vT) and math.isfinite(st.h)):
             return None
         return Point(st, cp, vT)
+
+
+    # -- two-phase states -------------------------------------------------------------------------
+    def state_any(self, P: float, T: float) -> State:
+        """The state at (P, T), single-phase or (mixtures) two-phase, from a flash with the
+        phase-stability test where the envelope does not show the state single-phase."""
+        if self.mixture and not self.outside_envelope(P, T):
+            wet = self._wet_PT(P, T)
+            if wet is not None:
+                return wet
+        return self.pt(P, T).state
+
+    def _wet_PT(self, P: float, T: float) -> State | None:
+        """A two-phase state at (P, T) with its vapour fraction on a mass basis, or None (single phase, or
+        the flash failed)."""
+        AS, CP = self.AS, self.CP
+        self.gas.flashes += 1
+        try:
+            AS.update(CP.PT_INPUTS, P, T)
+            Q = AS.Q()
+            if not 0.0 <= Q <= 1.0:
+                return None
+            return self._wet_state(P, T, Q)
+        except ValueError:
+            return None
+
+    def _wet_state(self, P: float, T: float, Q: float) -> State:
+        """The two-phase state the AbstractState holds: CoolProp's vapour fraction Q (molar for mixtures) is
+        turned to a mass basis with the molar masses of the two phases, x = Q·M_V / (Q·M_V + (1 − Q)·M_L)."""
+        AS, CP = self.AS, self.CP
+        rv = AS.saturated_vapor_keyed_output(CP.iDmass)
+        rl = AS.saturated_liquid_keyed_output(CP.iDmass)
+        if self.mixture:
+            Mv = rv / AS.saturated_vapor_keyed_output(CP.iDmolar)
+            Ml = rl / AS.saturated_liquid_keyed_output(CP.iDmolar)
+            x = Q * Mv / (Q * Mv + (1.0 - Q) * Ml)
+        else:
+            x = Q
+        return State(P, T, 1.0 / AS.rhomass(), AS.umass(), AS.hmass(), AS.smass(), math.nan, "two-phase", x,
+                     rho_liquid=rl, rho_vapour=rv)
+
+    def flash_P(self, P: float, prop: str, target: float, T0: float, what: dict[str, float]) -> State:
+        """The state at pressure P where ``prop`` ('h' or 's') equals target, single-phase or two-phase.
+
+        Single-phase first (:func:`solve_T`); where that fails, pure fluids take CoolProp's (h, P) or
+        (P, s) flash, and mixtures (where the envelope does not show the start guess single-phase) a
+        bracketed search in T (Illinois false position, at most :data:`WET_ITERATIONS` flashes with the
+        phase-stability test; h and s rise with T at constant P in and out of the two-phase region) to a
+        residual of 1e-3 J/kg in h or 1e-6 J/(kg K) in s.
+        """
+        if not self.mixture or self.outside_envelope(P, T0):
+            try:
+                return solve_T(self, P, T0, prop, target, what).state
+            except PhysicsError:
+                pass
+        if not self.mixture:
+            st: State = self.gas.state_Ph(P, target) if prop == "h" else self.gas.state_Ps(P, target)
+            return st
+        return self._wet_search(P, prop, target, T0, what)
+
+    def _wet_search(self, P: float, prop: str, target: float, T0: float, what: dict[str, float]) -> State:
+        def g(T: float) -> tuple[float, State]:
+            st = self.state_any(P, T)
+            return float(getattr(st, prop)) - target, st
+
+        def safe(T: float) -> tuple[float, State] | None:
+            try:
+                return g(T)
+            except PhysicsError:
+                return None
+
+        a = safe(T0)
+        if a is None:
+            raise PhysicsError("eos.wet_not_computed", P=P, state=what)
+        Ta, (fa, sa) = T0, a
+        step = -5.0 if fa > 0 else 5.0
+        Tb, fb, sb = Ta, fa, sa
+        for _ in range(WET_ITERATIONS):          # bracket
+            Tn = Tb + step
+            r = safe(Tn)
+            if r is None:
+                step *= 0.5
+                continue
+            Ta, fa, sa = Tb, fb, sb
+            Tb, (fb, sb) = Tn, r
+            if fa * fb <= 0:
+                break
+            step *= 1.6
+        else:
+            raise PhysicsError("eos.wet_not_found", P=P, state=what, T=T0)
+        tol = 1e-3 if prop == "h" else 1e-6      # J/kg or J/(kg K): well under 1e-5 K of temperature
+        for _ in range(WET_ITERATIONS):          # Illinois false position
+            if abs(Tb - Ta) < 1e-5 or abs(fb) <= tol:
+                return sb
+            Tc = Tb - fb * (Tb - Ta) / (fb - fa)
+            fc, sc = g(Tc)
+            if fc * fb < 0:
+                Ta, fa, sa = Tb, fb, sb
+            else:
+                fa *= 0.5
+            Tb, fb, sb = Tc, fc, sc
+        if abs(Tb - Ta) < 1e-3:
+            return sb
+        raise PhysicsError("eos.wet_not_converged", P=P, state=what, n=WET_ITERATIONS)
 
 
 def solve_T(eos: Eos, P: float, T0: float, prop: str, target: float, what: dict[str, float]) -> Point:

@@ -8,7 +8,31 @@ from functools import lru_cache
 from importlib import metadata
 from pathlib import Path
 
-__all__ = ["closest_fluids", "fluid_names", "is_mixture_string", "known_fluid"]
+__all__ = ["TRADE_NAMES", "closest_fluids", "component_name", "fluid_names", "is_mixture_string", "known_fluid",
+           "molar_mass"]
+
+
+#: The trade's short names of mixture components → CoolProp fluid names (the one table).
+TRADE_NAMES: dict[str, str] = {
+    "C1": "Methane", "C2": "Ethane", "C3": "Propane", "iC4": "IsoButane", "nC4": "n-Butane",
+    "iC5": "Isopentane", "nC5": "n-Pentane", "nC6": "n-Hexane", "N2": "Nitrogen", "CO2": "CarbonDioxide",
+    "H2S": "HydrogenSulfide", "H2O": "Water", "He": "Helium", "H2": "Hydrogen", "Ar": "Argon",
+}
+
+
+def component_name(name: str) -> str:
+    """The CoolProp name of a mixture component given by CoolProp name or by the trade's short name."""
+    return TRADE_NAMES.get(name, name)
+
+
+def molar_mass(name: str) -> float | None:
+    """Molar mass of a pure fluid [kg/mol] from CoolProp, or None if the name is unknown."""
+    import CoolProp.CoolProp as CP
+
+    try:
+        return float(CP.PropsSI("molar_mass", component_name(name)))
+    except ValueError:
+        return None
 
 
 @lru_cache(maxsize=1)

@@ -35,6 +35,8 @@ class State:
     Z: float
     phase: str
     quality: float | None = None   # vapour mass fraction in the two-phase region
+    rho_liquid: float | None = None   # density of the liquid phase of a two-phase state [kg/m3]
+    rho_vapour: float | None = None   # density of the vapour phase of a two-phase state [kg/m3]
 
     @property
     def rho(self) -> float:
@@ -75,8 +77,8 @@ class Gas:
         """The state at pressure P [Pa] and specific enthalpy h [J/kg]."""
         raise NotImplementedError
 
-    def saturation_curve(self, n: int = 60) -> list[tuple[float, float, float, float]] | None:
-        """Points (T, P, v, s) of the saturated liquid and vapour lines, or None if not applicable."""
+    def saturation_curve(self, n: int = 60) -> list[tuple[float, float, float, float, float]] | None:
+        """Points (T, P, v, s, h) of the saturated liquid and vapour lines, or None if not applicable."""
         return None
 
     def dew_temperature(self, P: float) -> float | None:
@@ -206,7 +208,10 @@ class RealGas(Gas):
         Q = AS.Q()
         quality = Q if 0.0 <= Q <= 1.0 else None
         if quality is not None:
-            phase = "two-phase"
+            # a two-phase state has no single compressibility factor; its phases have their own densities
+            return State(P, T, 1.0 / AS.rhomass(), AS.umass(), AS.hmass(), AS.smass(), math.nan, "two-phase",
+                         quality, AS.saturated_liquid_keyed_output(self._CP.iDmass),
+                         AS.saturated_vapor_keyed_output(self._CP.iDmass))
         return State(P, T, 1.0 / AS.rhomass(), AS.umass(), AS.hmass(), AS.smass(), AS.compressibility_factor(),
                      phase, quality)
 
@@ -292,7 +297,7 @@ class RealGas(Gas):
         except ValueError:
             return None
 
-    def saturation_curve(self, n: int = 60) -> list[tuple[float, float, float, float]] | None:
+    def saturation_curve(self, n: int = 60) -> list[tuple[float, float, float, float, float]] | None:
         """Points (T, P, v, s) of the saturated liquid and vapour lines of a pure fluid (None for a mixture)."""
         if not self.pure:
             return None
@@ -306,9 +311,9 @@ class RealGas(Gas):
             T = Tt + (self.Tc - Tt) * (1 - (1 - x) ** 2) * 0.9999
             try:
                 AS.update(CP.QT_INPUTS, 0.0, T)
-                pts_l.append((T, AS.p(), 1.0 / AS.rhomass(), AS.smass()))
+                pts_l.append((T, AS.p(), 1.0 / AS.rhomass(), AS.smass(), AS.hmass()))
                 AS.update(CP.QT_INPUTS, 1.0, T)
-                pts_v.append((T, AS.p(), 1.0 / AS.rhomass(), AS.smass()))
+                pts_v.append((T, AS.p(), 1.0 / AS.rhomass(), AS.smass(), AS.hmass()))
             except ValueError:
                 continue
         return pts_l + pts_v[::-1]

@@ -89,7 +89,7 @@ def diagrams(results, system: str) -> dict[str, str]:
         ax.plot(v, P, color=PALETTE[k % len(PALETTE)], label=f"{leg.i}→{leg.i + 1}  {_clip(leg.name)}")
     _mark_states(ax, results, system, "v", "P")
     vs = Ps = None
-    if sat:
+    if sat and getattr(results.gas, "pure", True):   # a mixture's envelope: on T–s and P–h only
         vs = _conv([p[2] for p in sat], "m**3/kg", system)
         Ps = _conv([p[1] for p in sat], "Pa", system)
         _dome(ax, vs, Ps)
@@ -126,6 +126,41 @@ def diagrams(results, system: str) -> dict[str, str]:
     ax.set_ylabel(_label("temperature T", "K", system))
     ax.legend(fontsize=7.5, loc="best")
     out["ts"] = _svg(fig)
+    plt.close(fig)
+    if sat and len(sat[0]) > 4 and any(st.quality is not None for leg in legs for st in leg.path):
+        out["ph"] = _ph(plt, results, system, sat)
+    return out
+
+
+def _ph(plt, results, system: str, sat) -> str:
+    """P–h diagram with the saturation dome or phase envelope, drawn where a state is two-phase."""
+    fig, ax = plt.subplots(figsize=(6.3, 3.6))
+    allh, allP = [], []
+    for k, leg in enumerate(results.legs):
+        h = _conv([st.h for st in leg.path], "J/kg", system)
+        P = _conv([st.P for st in leg.path], "Pa", system)
+        allh += h
+        allP += P
+        ax.plot(h, P, color=PALETTE[k % len(PALETTE)], label=f"{leg.i}→{leg.i + 1}  {leg.name}")
+    _mark_states(ax, results, system, "h", "P")
+    hs = _conv([p[4] for p in sat], "J/kg", system)
+    Ps = _conv([p[1] for p in sat], "Pa", system)
+    _dome(ax, hs, Ps)
+    if allP and max(allP) / max(min(allP), 1e-300) > 6:
+        ax.set_yscale("log")
+    _limits(ax, allh, allP, hs, Ps)
+    # a throttle is a vertical line on P–h: widen to show the envelope around it
+    x0, x1 = ax.get_xlim()
+    want = 0.5 * (max(hs) - min(hs))
+    if x1 - x0 < want:
+        mid = 0.5 * (x0 + x1)
+        ax.set_xlim(mid - want / 2, mid + want / 2)
+    ax.ticklabel_format(axis="x", useOffset=False)
+    _plain_log_ticks(ax)
+    ax.set_xlabel(_label("specific enthalpy h", "J/kg", system) + "  (differences only)")
+    ax.set_ylabel(_label("pressure P (absolute)", "Pa", system))
+    ax.legend(fontsize=7.5, loc="best")
+    out = _svg(fig)
     plt.close(fig)
     return out
 
@@ -177,7 +212,7 @@ def _limits(ax, xs, ys, dome_x=None, dome_y=None):
 
 
 def _mark_states(ax, results, system, x, y):
-    unit = {"v": "m**3/kg", "P": "Pa", "s": "J/(kg*K)", "T": "K"}
+    unit = {"v": "m**3/kg", "P": "Pa", "s": "J/(kg*K)", "T": "K", "h": "J/kg"}
     for rec in results.states:
         xv = units.display(getattr(rec.state, x), unit[x], system, absolute=True)[0]
         yv = units.display(getattr(rec.state, y), unit[y], system, absolute=True)[0]

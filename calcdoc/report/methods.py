@@ -112,6 +112,31 @@ REFERENCES: dict[str, Reference] = {
 
 METHODS: dict[str, Method] = {
     "input": Method("Value as given in the job file", "", ()),
+    "moist.ideal_mixture": Method(
+        "Moist air as an ideal mixture (volumes additive at P and T) of the dry-air model and water vapour as an "
+        "ideal gas at its partial pressure, with the ideal-gas properties of water from its reference equation of "
+        "state (not the real-moist-air model of CoolProp's humid-air functions, which these results are checked "
+        "against in calcdoc's tests); W in kg of water per kg of dry air",
+        "W = ε·p_v/(P − p_v), ε = M_w/M_a;  v = w_a·v_a(P, T) + w_v·R_v·T/P;  h = w_a·h_a(P, T) + w_v·h_v°(T);  "
+        "w_a = 1/(1 + W), w_v = W/(1 + W)", ("Wagner-JPCRD-2002", "bell2014")),
+    "moist.p_ws": Method("Saturation pressure of water over liquid (dew point: its inverse), from the reference "
+                         "equation of state of water, with no enhancement factor: the saturation humidity ratio is "
+                         "then below that of real moist air (by about 0.4 % at 1 atm and 2 % at 8 bar against "
+                         "CoolProp's real-moist-air functions), so condensate is slightly overstated",
+                         "p_ws = p_sat,water(T)",
+                         ("Wagner-JPCRD-2002",)),
+    "moist.condensate": Method(
+        "Cooling below the dew point: saturated outlet, the excess water drained as liquid at the outlet "
+        "temperature; steady-flow energy balance with the drained liquid leaving",
+        "ṁ_da = ṁ_1/(1 + W_1);  ṁ_c = ṁ_da·(W_1 − W_2);  Q̇ = (ṁ_1 − ṁ_c)·h_2 + ṁ_c·h_f − ṁ_1·h_1",
+        ("cengel2019",)),
+    "moist.receiver": Method(
+        "Fixed mass of moist air at constant volume: the end pressure from the volume balance of the gas and any "
+        "condensed liquid; heat from the first law with the liquid's internal energy",
+        "m_da·(1 + W_2)·v(P_2, T_2, W_2) + m_c·v_f = V;  Q = ΔU = (m_g·u_2 + m_c·u_f) − m·u_1",
+        ("cengel2019", "Wagner-JPCRD-2002")),
+    "moist.liquid": Method("Enthalpy of the drained liquid water from the reference equation of state of water",
+                           "h_f = h_water(P_2, T_2)", ("Wagner-JPCRD-2002", "bell2014")),
     "eos.real": Method("Real-gas properties from the fluid's reference Helmholtz-energy equation of state, "
                        "evaluated with CoolProp", "u, h, s, Z = f(two independent properties)", ("bell2014",)),
     "eos.ideal": Method("Ideal gas with constant specific heats", "P·v = R·T;  Δh = cp·ΔT;  Δu = cv·ΔT;  "

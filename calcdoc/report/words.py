@@ -41,6 +41,24 @@ WARNINGS: dict[str, str] = {
     "vessel.cold_wall": ("Leg '{leg}': the wall temperature falls to {T:K~4}, below {T_limit:K~4} (common practice: "
                          "the usual default minimum design metal temperature of carbon-steel vessels). Check the "
                          "vessel material's impact-test exemption or rating under the applicable code."),
+    "mixture.envelope_fallback": (
+        "Gas: the phase envelope of the mixture's Helmholtz-energy model was not traced ({outcome}; its budget is "
+        "{budget:.0f} s of processor time). Fallback: {source_text}. Check the phase of every state near the dew "
+        "line with a reviewed phase-equilibrium calculation."),
+    "mixture.normalised": (
+        "Gas: the mixture's fractions ({basis} basis) summed to {total:.6f}; they were divided by that sum so that "
+        "they add up to 1."),
+    "moist.wet_inlet": (
+        "Leg '{leg}': the inlet air is saturated (relative humidity {phi:.3f} at {T:K~4}): droplets reach the "
+        "machine. Drain and separate upstream, or warm the inlet above its dew point; wet compression and "
+        "expansion are outside this calculation."),
+    "moist.supersaturated": (
+        "Leg '{leg}': at its end the air is wetter than saturation (relative humidity {phi:.3f} at {T:K~4}, dew "
+        "point {T_dew:K~4}); water would condense here, but this leg keeps it as vapour. Check for condensate "
+        "and drain it."),
+    "flow.two_phase_outlet": (
+        "Leg '{leg}': the outlet is two-phase at {P:Pa}, {T:K~4}; vapour fraction (mass basis) {x:.4f}. "
+        "Condensation: liquid leaves this leg; check that what follows accepts it and that it is drained."),
 }
 for _what, _words in (("saturation", "saturation temperature"), ("dew", "dew temperature")):
     WARNINGS[f"phase.{_what}.below"] = ("{where}: the state at P = {P:Pa}, T = {T:K~4} is at or below the " + _words
@@ -49,6 +67,12 @@ for _what, _words in (("saturation", "saturation temperature"), ("dew", "dew tem
                                        + " ({dew:K~4} at {P:Pa}); condensation is possible.")
 #: fact code (a plain statement about a leg) → sentence
 FACTS: dict[str, str] = {
+    "leg.two_phase_outlet": ("The outlet is two-phase: vapour fraction (mass basis) x = {x:.4f} at {T:K~4}, "
+                              "{P:Pa}."),
+    "flow.wet_expander_end": ("The outlet is two-phase: vapour fraction (mass basis) x = {x:.4f} at {T:K~4}, "
+                              "{P:Pa}. The isentropic efficiency applies to enthalpy differences as usual; no "
+                              "single-phase path of constant polytropic efficiency reaches a wet end, so no "
+                              "polytropic head or exponent is given."),
     "closed.n_derived": "n = {n:.6g} derived from the measured end state.",
     "closed.n1_form": "Boundary work by the form that stays accurate for n near 1.",
     "closed.isothermal_real": "Real gas: heat from T·ΔS along the isotherm, work from the first law (P·V is not "
@@ -67,6 +91,28 @@ FACTS: dict[str, str] = {
 }
 #: note code of a calc (which form was used, what a value means) → text
 NOTES: dict[str, str] = {
+    "moist.W": "humidity ratio: kg of water vapour per kg of dry air",
+    "moist.eps": "ε = M_w/M_a = 0.62198 (molar masses of water and dry air)",
+    "moist.dew_point": "dew point of the inlet's water vapour at the outlet pressure",
+    "moist.saturated_outlet": "the outlet is below the dew point: saturated at the outlet temperature",
+    "moist.dry_flow": "flow of dry air",
+    "moist.flow_basis": ("flow of dry air: the mass flow given is that of the moist gas, water vapour "
+                         "included"),
+    "moist.condensate": "condensate drained as liquid water",
+    "moist.condensate_total": "total condensate drained by the coolers",
+    "moist.no_condensate": "the outlet is above the dew point: no condensate",
+    "moist.liquid": "liquid water at the outlet pressure and temperature",
+    "moist.duty": "negative: heat removed; includes the latent heat of the condensate and the enthalpy it drains",
+    "moist.no_boundary_work": "constant volume: no boundary work",
+    "moist.duty_closed": "negative: heat removed; includes the latent heat of the water that condensed",
+    "moist.q_per_inlet": "per kg of moist gas entering the leg",
+    "moist.receiver_P": "the end pressure of the fixed volume, gas and condensed liquid together",
+    "moist.receiver_U": "the internal energy of the gas and of the liquid water at the end, less that at the start",
+    "moist.flow_basis_closed": "the mass of the moist air, water vapour included",
+    "moist.site_humidity": "relative humidity of the site's air (the start state gives none)",
+    "flow.vapour_fraction": "vapour fraction, mass basis: mass of vapour per mass of the two-phase mixture",
+    "throttle_wet_mixture": ("T at P_2 with h_2 = h_1 (equation of state, flash with the phase-stability test): the "
+                             "outlet is two-phase"),
     "end_target": "end target",
     "from_eos": "from the equation of state",
     "n_equivalent": "equivalent polytropic exponent between the end states",
@@ -176,6 +222,16 @@ def _fewest(v: dict, system: str) -> str:
 def _partial(v: dict, system: str) -> str:
     return (f"{NOTES[v['total']]} — partial: no mechanical efficiency for {', '.join(v['missing'])}, not included")
 
+#: how each envelope fallback is named in a warning
+_ENVELOPE_SOURCES = {
+    "pr": ("the envelope of the Peng–Robinson cubic equation of state was traced instead and used only to tell "
+           "where a state is single-phase, with {margin:.0f} K of room on the gas side; states closer to its dew "
+           "line were flashed with the phase-stability test of the Helmholtz-energy model; no envelope is drawn on "
+           "the charts"),
+    "none": ("no envelope could be traced (the Peng–Robinson one failed too); every state was flashed with the "
+             "phase-stability test of the Helmholtz-energy model and no envelope is drawn"),
+}
+
 
 def say(item: Finding | str, system: str = "SI") -> str:
     """A warning or a fact in words (text passes through as it is)."""
@@ -186,7 +242,10 @@ def say(item: Finding | str, system: str = "SI") -> str:
     template = WARNINGS.get(item.code) or FACTS.get(item.code)
     if template is None:
         return found_text(item, system)
-    return phrase(template, worded(item.values, system), system)
+    values = worded(item.values, system)
+    if item.code == "mixture.envelope_fallback":
+        values["source_text"] = _ENVELOPE_SOURCES[values["source"]].format(margin=values.get("margin", 0.0))
+    return phrase(template, values, system)
 
 
 def gas_text(gas) -> str:

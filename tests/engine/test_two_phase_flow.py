@@ -48,7 +48,29 @@ def _sat_P_on_isentrope(s1):
     return 0.5 * (lo + hi)
 
 
-@pytest.mark.parametrize("eff", ["{polytropic: 0.8}", "{isentropic: 0.8}"])
+def test_expander_with_isentropic_efficiency_ends_wet():
+    """The isentropic end state may be wet; the efficiency applies to the enthalpy difference."""
+    import CoolProp.CoolProp as CP
+
+    text = flow_job(CO2, "{pressure: 60 bar, temperature: 40 degC, mass_flow: 1 kg/s}",
+                    "- name: Turbine\n  process: expander\n  efficiency: {isentropic: 0.8}\n  end:\n    pressure: 10 bar\n")
+    res = run(loads(text, "job.yaml"))
+    leg = res.legs[0]
+    # CoolProp called directly: h1, the isentropic end h2s = h(10 bar, s1), h2 = h1 + 0.8·(h2s − h1), (P, h) flash
+    h1 = CP.PropsSI("H", "P", 60e5, "T", 313.15, "CarbonDioxide")
+    s1 = CP.PropsSI("S", "P", 60e5, "T", 313.15, "CarbonDioxide")
+    h2s = CP.PropsSI("H", "P", 10e5, "S", s1, "CarbonDioxide")
+    h2 = h1 + 0.8 * (h2s - h1)
+    assert leg.end.h == pytest.approx(h2, rel=1e-7)
+    assert leg.end.T == pytest.approx(CP.PropsSI("T", "P", 10e5, "H", h2, "CarbonDioxide"), abs=1e-3)
+    assert leg.end.quality == pytest.approx(CP.PropsSI("Q", "P", 10e5, "H", h2, "CarbonDioxide"), abs=1e-5)
+    assert leg.end.phase == "two-phase" and "head" not in leg.quantities
+    assert leg.quantities["work_in"].value == pytest.approx(h2 - h1, rel=1e-7)
+    assert leg.end.rho_liquid == pytest.approx(CP.PropsSI("D", "P", 10e5, "Q", 0, "CarbonDioxide"), rel=1e-6)
+    assert leg.end.rho_vapour == pytest.approx(CP.PropsSI("D", "P", 10e5, "Q", 1, "CarbonDioxide"), rel=1e-6)
+
+
+@pytest.mark.parametrize("eff", ["{polytropic: 0.8}"])
 def test_expander_into_the_dome_stops_with_pressure_and_saturation_temperature(eff):
     import CoolProp.CoolProp as CP
 
