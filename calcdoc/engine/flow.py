@@ -23,6 +23,7 @@ from ..physics.gas import RealGas, State
 from ..physics.staging import stage_ratio_calc, suction_pressures
 from .common import job_basis, make_gas, saturation_near, site_calcs, software_versions
 from .diagnose import ideal_condensation_warnings, phase_warnings
+from .recip import Plan
 from .results import Results, StateRecord
 
 __all__ = ["FlowResults", "run_flow"]
@@ -59,7 +60,8 @@ def run_flow(job: Job) -> FlowResults:
         s1 = ctx.state(P1, T1)
     except PhysicsError as exc:
         raise JobError([problem(job, Finding("start.not_computed", {"error": exc}, "start"))]) from None
-    flow = _flow_calcs(job, ctx, s1)
+    plan = Plan(job, ctx)
+    flow = _flow_calcs(job, ctx, s1, plan)
     ctx.m_dot = flow["m_dot"].value
     start_calcs = site_calcs(job) + list(gas_calcs) + [Calc("v_1", s1.v, "m**3/kg", "v(P_1, T_1)", gas.eos_method)]
     warnings += _phase_warnings(ctx, Finding("label.start"), [s1], True)
@@ -68,7 +70,7 @@ def run_flow(job: Job) -> FlowResults:
     s = s1
     for leg in job.legs:
         try:
-            made, info = _leg(job, ctx, leg, leg.options, len(legs) + 1, s)
+            made, info = _leg(job, ctx, leg, leg.options, len(legs) + 1, s, plan)
         except TwoPhaseError as exc:
             target = (leg.end.get("pressure") or leg.end.get("pressure_ratio") or leg.end.get("temperature"))
             raise _problem_at(job, target, Finding("leg.two_phase", {"leg": leg.name, "process": leg.process,
@@ -100,17 +102,36 @@ def run_flow(job: Job) -> FlowResults:
     extra = {"totals": {c.symbol: {"value": c.value, "unit": c.unit} for c in totals}}
     if staging_json:
         extra["staging"] = staging_json
+    if plan.cylinders_json:
+        extra["cylinders"] = plan.cylinders_json
+    if plan.series_json:
+        extra["interstage"] = plan.series_json
     if eos is not None:
         extra["eos_flashes"] = gas.flashes
     return FlowResults(job, gas, "flow", None, flow, records, tuple(legs), tuple(start_calcs), (), tuple(warnings),
                        basis, software_versions(), extra, saturation_near(gas, legs), totals=totals)
 
 
-def _flow_calcs(job: Job, ctx: Ctx, s1: State) -> dict[str, Calc]:
+def _flow_calcs(job: Job, ctx: Ctx, s1: State, plan: Plan) -> dict[str, Calc]:
     st = job.start
     M = ctx.gas.M
     out: dict[str, Calc] = {}
-    if st.mass_flow is not None:
+    if plan.sets_flow:
+        # the first leg's cylinder sets the flow (the job layer allows no flow only then)
+        try:
+            f = plan.flow(0, s1, plan.discharge(0, s1))
+        except PhysicsError as exc:
+            raise JobError([problem(job, Finding("leg.flow_failed", {"leg": job.legs[0].name, "error": exc},
+                                                 f"{job.legs[0].path}.cylinder"))]) from None
+        if f.eta_v <= 0:
+            raise JobError([problem(job, Finding("cylinder.no_gas", {"leg": job.legs[0].name, "eta": f.eta_v,
+                                                                    "r": plan.P_d[0] / s1.P}),
+                                    at=job.legs[0].options.cylinder.clearance)])
+        m = f.m
+        out["m_dot"] = Calc("ṁ", m, "kg/s", "{eta}·{Vd}/{v1}", "cylinder.mass_flow",
+                            {"eta": Term("η_v", f.eta_v, ""), "Vd": Term("V̇_d", f.V_d, "m**3/s"),
+                             "v1": Term("v_1", s1.v, "m**3/kg")}, note=Finding("set_by_cylinder", {"leg": job.legs[0].name}))
+    elif st.mass_flow is not None:
         m = st.mass_flow.si
         out["m_dot"] = Calc("ṁ", m, "kg/s", "{m}", "input", {"m": Term("ṁ", m, "kg/s")})
     elif st.molar_flow is not None:
@@ -158,7 +179,8 @@ def _target_inp(leg: LegSpec):
     return leg.end.get("pressure") or leg.end.get("pressure_ratio")
 
 
-def _leg(job: Job, ctx: Ctx, leg: LegSpec, opt: LegOptions, i: int, s: State) -> tuple[list[LegResult], dict]:
+def _leg(job: Job, ctx: Ctx, leg: LegSpec, opt: LegOptions, i: int, s: State,
+         plan: Plan) -> tuple[list[LegResult], dict]:
     proc = leg.process
     wrong_way = direction_problem(job, leg, s.P, s.T)
     if wrong_way is not None:
@@ -167,6 +189,13 @@ def _leg(job: Job, ctx: Ctx, leg: LegSpec, opt: LegOptions, i: int, s: State) ->
         T2 = leg.end["temperature"].si
         P2, dcalc = _drop(job, opt.drop, i, s.P)
         return [heat_exchanger(ctx, leg.name, proc, i, s, P2, T2, dcalc)], {}
+    if opt.machine == "reciprocating":
+        k = plan.index[leg.name]
+        P2 = plan.discharge(k, s)
+        T2m = leg.end["temperature"].si if "temperature" in leg.end else None
+        res = machine(ctx, leg.name, proc, i, s, P2, opt.eta_p.si if opt.eta_p else None,
+                      opt.eta_s.si if opt.eta_s else None, opt.eta_m.si if opt.eta_m else None, T2m)
+        return [plan.attach(k, res)], {}
     P2 = _end_pressure(job, leg, s)
     if proc == "throttle":
         return [throttle(ctx, leg.name, i, s, P2)], {}
