@@ -91,6 +91,7 @@ def run_flow(job: Job) -> FlowResults:
                                                                      "x": e.quality}))
             legs.append(res)
             s = res.end
+    warnings += plan.warnings
     records = tuple(StateRecord(k + 1, str(k + 1), st, V_dot=ctx.m_dot * st.v)
                     for k, st in enumerate([s1] + [leg.end for leg in legs]))
     warnings += ideal_condensation_warnings(job, gas, legs, s1)   # ideal model of a named fluid: Z, condensation

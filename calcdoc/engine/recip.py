@@ -53,6 +53,10 @@ class Plan:
         self.P_d: dict[int, float] = {}
         self.series_json: list[dict] = []
         self.cylinders_json: list[dict] = []
+        self.warnings: list[Finding] = []
+        self.settled: dict[int, tuple[float, int]] = {}    # leg index → (settled discharge pressure, evaluations)
+        self._leg_name = ""
+        self.own: set[int] = set()                           # the legs whose cylinders set the job's flow
         self.sets_flow = job.start.mass_flow is None and job.start.molar_flow is None and \
             job.start.volume_flow is None and job.start.standard_volume_flow is None
 
@@ -92,6 +96,8 @@ class Plan:
         if k in self.P_d:
             return self.P_d[k]
         members = self.series(k)
+        if k == 0 and self.sets_flow:
+            self.own = set(members)
         last = self.job.legs[members[-1]]
         if len(members) == 1:
             self.P_d[k] = last.end["pressure"].si if "pressure" in last.end else s_in.P * last.end["pressure_ratio"].si
@@ -123,6 +129,8 @@ class Plan:
                                                                              "error": exc}, f"{last.path}.end"))]) from None
         for j, P in zip(members, pressures, strict=True):
             self.P_d[j] = P
+        for j in members[:-1]:
+            self.settled[j] = (self.P_d[j], evaluations)
         self.series_json.append({"legs": [self.job.legs[j].name for j in members],
                                  "discharge_pressures": [{"value": P, "unit": "Pa"} for P in pressures],
                                  "rtol": SETTLE_RTOL, "flow_evaluations": evaluations})
@@ -132,6 +140,7 @@ class Plan:
     def attach(self, k: int, res: LegResult) -> LegResult:
         """The leg result of reciprocating leg k with its cylinder calcs, quantities and facts."""
         leg = self.job.legs[k]
+        self._leg_name = leg.name
         spec = leg.options.cylinder
         cyl = geometry(spec)
         s1, s2 = res.start, res.end
@@ -141,6 +150,10 @@ class Plan:
                                                                          "eta": f.eta_v}), at=spec.clearance)])
         i, j = res.i, res.i + 1
         calcs, q, facts = _geometry_calcs(cyl, f.V_d)
+        if k in self.settled:
+            P, n_eval = self.settled[k]
+            calcs.insert(0, Calc(f"P_{j}", P, "Pa", "~settled", "cylinder.settle", note="settled_pressure"))
+            facts.append(Finding("cylinder.settled", {"P": P, "rtol": SETTLE_RTOL, "evaluations": n_eval}))
         calcs += _eta_v_calcs(self.ctx, spec, cyl, f, s1, s2, i, j, facts)
         V_in, m_cyl = f.eta_v * f.V_d, f.m
         calcs.append(Calc("V̇_in", V_in, "m**3/s", "{eta}·{Vd}", "cylinder.volumetric_efficiency",
@@ -150,13 +163,16 @@ class Plan:
         calcs.append(M)
         q["volumetric_efficiency"] = next(c for c in calcs if c.symbol == "η_v")
         q["cylinder_flow"] = M
-        if not (self.sets_flow and k in self.P_d and k <= min(self.P_d)):
+        if k not in self.own:
             cap = m_cyl / self.ctx.m_dot
             C = Calc("ṁ_cyl/ṁ", cap, "", "{mc}/{m}", "cylinder.capacity",
                      {"mc": Term("ṁ_cyl", m_cyl, "kg/s"), "m": Term("ṁ", self.ctx.m_dot, "kg/s")})
             calcs.append(C)
             q["capacity"] = C
-        else:
+            if cap < 1.0:
+                self.warnings.append(Finding("cylinder.short", {"leg": leg.name, "mc": m_cyl, "m": self.ctx.m_dot,
+                                                                "pct": 100.0 * cap}))
+        elif k == 0:
             facts.append(Finding("cylinder.sets_flow", {"m": m_cyl}))
         calcs += self._rods(cyl, s1.P, s2.P, i, j, q, facts)
         n_c = q_n.value if (q_n := res.quantities.get("n")) is not None else \
@@ -177,9 +193,11 @@ class Plan:
         T = Calc("F_t", F_t, "N", ("{Pd}" if cyl.double else "{Ps}") + "·{Ace} − {Ps}·{Ahe} + {Pa}·{Ar}",
                  "cylinder.rod_load", t, note="rod_tension" if cyl.double else "rod_tension_single")
         q["rod_load_compression"], q["rod_load_tension"] = C, T
-        facts.append(Finding("cylinder.rod_atmosphere", {"P": P_rod, "source": "site" if site is not None else "standard"}))
-        facts.append(Finding("cylinder.reverses" if F_c > 0 and F_t > 0 else "cylinder.no_reversal",
-                             {"Fc": F_c, "Ft": F_t}))
+        facts.append(Finding("cylinder.rod_site" if site is not None else "cylinder.rod_standard", {"P": P_rod}))
+        reverses = F_c > 0 and F_t > 0
+        facts.append(Finding("cylinder.reverses" if reverses else "cylinder.no_reversal", {"Fc": F_c, "Ft": F_t}))
+        if not reverses:
+            self.warnings.append(Finding("cylinder.no_reversal", {"leg": self._leg_name, "Fc": F_c, "Ft": F_t}))
         return [C, T]
 
     def _indicated(self, cyl: Cylinder, res: LegResult, n_c: float, n_e: float, q: dict) -> list[Calc]:

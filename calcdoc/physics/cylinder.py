@@ -221,7 +221,7 @@ def settle(P_in: float, P_out: float, n: int, flow: Callable[[int, float, float]
         Ps = suction_after(0, x)
         for k in range(1, n - 1):
             if Ps >= P_out:
-                raise PhysicsError("cylinder.no_balance", P=Ps)
+                raise PhysicsError("cylinder.no_common_flow", P=Ps)
             y = _root(lambda P, k=k, Ps=Ps: m - m_of(k, Ps, P), Ps, P_out, brentq)
             pd.append(y)
             Ps = suction_after(k, y)
@@ -249,5 +249,5 @@ def _root(g: Callable[[float], float], lo: float, hi: float, brentq) -> float:
             return brentq(g, prev[0], x, rtol=SETTLE_RTOL, xtol=1e-9 * lo, maxiter=200)
         prev = (x, gx)
     if prev is None:
-        raise PhysicsError("cylinder.no_balance", P=hi)
-    raise PhysicsError("cylinder.no_balance", P=prev[0])
+        raise PhysicsError("cylinder.no_common_flow", P=hi)
+    raise PhysicsError("cylinder.no_common_flow", P=prev[0])

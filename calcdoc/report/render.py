@@ -16,7 +16,7 @@ from urllib.parse import unquote, urlsplit
 from .. import units
 from ..engine import software_versions
 from . import format as fmt, methods, words
-from .charts import diagrams, sweep_chart, time_chart
+from .charts import diagrams, indicator_chart, sweep_chart, time_chart
 
 CAUTIONS = (
     "Compressed gas stores energy. A vessel, cylinder or pipe that fails at pressure can release it "
@@ -123,6 +123,8 @@ def context(results) -> dict:
         charts["wall"] = "yes" if any("T_wall" in (leg.series or {}) for leg in results.legs) else ""
     if results.extra.get("sweep"):
         charts["sweep"] = sweep_chart(results.extra["sweep"], system)
+    if results.extra.get("cylinders"):
+        charts["indicator"] = [(c["leg"], indicator_chart(c, system)) for c in results.extra["cylinders"]]
     return {
         "r": results,
         "job": job,

@@ -39,8 +39,31 @@ for _what, _words in (("saturation", "saturation temperature"), ("dew", "dew tem
                                         + " ({dew:K~4} at that pressure): liquid can form.")
     WARNINGS[f"phase.{_what}.near"] = ("{where}: the gas comes within {gap:dK~2} of its " + _words
                                        + " ({dew:K~4} at {P:Pa}); condensation is possible.")
+WARNINGS["cylinder.short"] = ("Leg '{leg}': the cylinders pass {mc:kg/s~5}, {pct:.1f} % of the required flow "
+                              "{m:kg/s~5}: the machine is too small for the duty.")
+WARNINGS["cylinder.no_reversal"] = ("Leg '{leg}': the gas rod load does not reverse during the revolution "
+                                    "(compression {Fc:N~4}, tension {Ft:N~4}); without reversal the crosshead pin "
+                                    "bearing is not relieved and lubricated. Check with the frame manufacturer.")
 #: fact code (a plain statement about a leg) → sentence
 FACTS: dict[str, str] = {
+    "cylinder.sets_flow": "The cylinders set the flow of the job: ṁ = {m:kg/s~5}, which runs through the rest of "
+                          "the train.",
+    "cylinder.rod_site": "Gas rod loads at the dead points from the suction and discharge pressures on the piston "
+                         "faces, with the site atmosphere ({P:Pa~5}) acting on the rod outside the packing; inertia, "
+                         "valve losses and pulsation are not included.",
+    "cylinder.rod_standard": "Gas rod loads at the dead points from the suction and discharge pressures on the "
+                             "piston faces, with the standard atmosphere at sea level ({P:Pa~5}; the job gives no "
+                             "site) acting on the rod outside the packing; inertia, valve losses and pulsation are "
+                             "not included.",
+    "cylinder.reverses": "The gas rod load reverses every revolution: compression {Fc:N~4}, tension {Ft:N~4}.",
+    "cylinder.no_reversal": "The gas rod load does not reverse: compression {Fc:N~4}, tension {Ft:N~4} (a negative "
+                            "value: the rod never sees that direction of load).",
+    "cylinder.n_e_default": "No re-expansion exponent is given: the gas's isentropic exponent at suction is used, "
+                            "n_e = {n:.4f}.",
+    "cylinder.loss_default": "No volumetric loss allowance is given: L = 0 (valve and ring leakage are commonly "
+                             "allowed for with 3–5 %; common practice).",
+    "cylinder.settled": "Interstage pressure settled where the cylinders in series pass the same mass flow: "
+                        "{P:Pa~6} (relative tolerance {rtol:.0e}; {evaluations} cylinder-flow evaluations).",
     "closed.n_derived": "n = {n:.6g} derived from the measured end state.",
     "closed.n1_form": "Boundary work by the form that stays accurate for n near 1.",
     "closed.isothermal_real": "Real gas: heat from T·ΔS along the isotherm, work from the first law (P·V is not "
@@ -93,6 +116,19 @@ NOTES: dict[str, str] = {
     "start_volume_flow": "actual volume flow at the start state",
     "standard_conditions": "reference conditions stated in the job: {P}, {T}",
     "sign_reversed": "{title}: {symbol} with its sign reversed",
+    "set_by_cylinder": "set by the cylinders of '{leg}' (no flow is given in the job)",
+    "inlet_volume_flow": "inlet volume flow at suction conditions",
+    "double_acting": "double acting: head end and crank end compress",
+    "single_acting": "single acting: head end only",
+    "n_e_default": "isentropic exponent of the gas at suction (no re-expansion exponent given)",
+    "rod_compression": "rod in compression at the end of the head-end stroke",
+    "rod_tension": "rod in tension at the end of the crank-end stroke",
+    "rod_tension_single": "single acting: the crank end holds suction pressure throughout",
+    "indicated_ratio": "indicated power of the ideal cycle over the gas power from the efficiency",
+    "settled_pressure": "interstage pressure where the cylinders in series pass the same mass flow",
+    "given_ratio": "given stage ratio",
+    "given_pressure": "given interstage pressure",
+    "rest_ratio": "the last stage takes the rest of the ratio",
     "total.comp_power": "total compressor gas power",
     "total.exp_power": "total expander gas power output",
     "total.cooling": "total cooling duty (heat removed from the gas)",
@@ -111,6 +147,9 @@ FACTS["staging.given"] = ("Staged into {stages} stages with equal pressure ratio
 #: Equations stated in words (an implicit condition rather than a formula): code → text with {placeholders}.
 EQUATIONS: dict[str, str] = {
     "~stage_ratio_absolute": "r such that r^{N}·{Pin} − {dP}·(r^({N} − 1) + … + r) = {Pout}",
+    "~cycle_area": "area of the ideal P–V loop with {Ps}, {Pd}, {Vs}, {c}, {nc}, {ne} (compression, discharge, "
+                   "re-expansion, suction)",
+    "~settled": "P such that every cylinder of the series passes the same mass flow",
     "~v_on_path": "v such that T(P_1·(v_1/v)^n, v) = T_2",
     "~T_on_path_compressor": "T at {P2} on the path v·dP = {eta}·dh",
     "~T_on_path_expander": "T at {P2} on the path dh = {eta}·v·dP",
