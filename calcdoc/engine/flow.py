@@ -225,17 +225,46 @@ def _drop(job: Job, drop, i: int, P1: float) -> tuple[float, Calc | None]:
                     {"P1": Term(f"P_{i}", P1, "Pa"), "dP": Term("ΔP", drop.absolute, "Pa")})
 
 
-def _train(job, ctx, leg, st: Staging, N, i, s, P_out, eta_p, eta_s, eta_m) -> list[LegResult]:
+def _given_discharge(job, st: Staging, k: int, N: int, Ps: float, P_out: float, i: int) -> tuple[float, Calc]:
+    """The discharge pressure of stage k of a staging block with given ratios or interstage pressures."""
+    j = i + 1
+    if k == N - 1:
+        if P_out <= Ps:
+            given = (st.ratios or st.pressures)[-1]
+            raise _problem_at(job, given, Finding("staging.rest_ratio", {"P": Ps, "P_out": P_out}))
+        return P_out, Calc("r_last", P_out / Ps, "", "{Pout}/{Ps}", "staging.given",
+                           {"Pout": Term("P_out", P_out, "Pa"), "Ps": Term(f"P_{i}", Ps, "Pa")}, note="rest_ratio")
+    if st.ratios:
+        r = st.ratios[k].si
+        return r * Ps, Calc(f"P_{j}", r * Ps, "Pa", "{r}·{Ps}", "staging.given",
+                            {"r": Term(f"r_{k + 1}", r, ""), "Ps": Term(f"P_{i}", Ps, "Pa")}, note="given_ratio")
+    P = st.pressures[k].si
+    if P <= Ps:
+        raise _problem_at(job, st.pressures[k], Finding("staging.rest_ratio", {"P": Ps, "P_out": P}))
+    return P, Calc(f"P_{j}", P, "Pa", "{P}", "input", {"P": Term(f"P_{j}", P, "Pa")}, note="given_pressure")
+
+
+def _train(job, ctx, leg, st: Staging, N, i, s, P_out, eta_p, eta_s, eta_m,
+           etas: tuple[float, ...] = ()) -> list[LegResult]:
     d = st.drop
-    rcalc = stage_ratio_calc(s.P, P_out, N, d.fraction, d.absolute)
-    Ps = suction_pressures(s.P, rcalc.value, N, d.fraction, d.absolute)
+    given = bool(st.ratios or st.pressures)
+    rcalc = None if given else stage_ratio_calc(s.P, P_out, N, d.fraction, d.absolute)
+    Ps = None if given else suction_pressures(s.P, rcalc.value, N, d.fraction, d.absolute)
     out: list[LegResult] = []
     for k in range(N):
-        Pd = rcalc.value * Ps[k] if k < N - 1 else P_out
+        first: tuple[Calc, ...] = ()
+        if given:
+            Pd, pc = _given_discharge(job, st, k, N, s.P, P_out, i)
+            first = (pc,)
+        else:
+            Pd = rcalc.value * Ps[k] if k < N - 1 else P_out
+            first = (rcalc,) if k == 0 else ()
+        if etas:
+            eta_p, eta_s = (etas[k], None) if eta_p is not None else (None, etas[k])
         res = machine(ctx, f"{leg.name}, stage {k + 1}" if N > 1 else leg.name, "compressor", i, s, Pd,
                       eta_p, eta_s, eta_m, None)
-        if k == 0:
-            res = _with(res, calcs=(rcalc,) + res.calcs)
+        if first:
+            res = _with(res, calcs=first + res.calcs)
         out.append(res)
         s, i = res.end, i + 1
         if k < N - 1:
@@ -250,31 +279,50 @@ def _train(job, ctx, leg, st: Staging, N, i, s, P_out, eta_p, eta_s, eta_m) -> l
 
 
 def _staged(job, ctx, leg, st: Staging, i, s, P_out, eta_p, eta_s, eta_m) -> tuple[list[LegResult], dict]:
-    if st.stages is not None:
-        legs = _train(job, ctx, leg, st, st.stages, i, s, P_out, eta_p, eta_s, eta_m)
-        why = Finding("staging.given", {"stages": st.stages})
-        info = {"leg": leg.name, "stages": st.stages, "rule": "given"}
+    etas = tuple(e.si for e in leg.options.eta_stages)
+    if st.fixed is not None:
+        N = st.fixed
+        legs = _train(job, ctx, leg, st, N, i, s, P_out, eta_p, eta_s, eta_m, etas)
+        rule = "ratios" if st.ratios else "pressures" if st.pressures else "given"
+        why = Finding(f"staging.{rule}" if rule != "given" else "staging.given", {"stages": N})
+        info = {"leg": leg.name, "stages": N, "rule": rule}
     else:
         limit = st.T_max.si
-        tried = []
+        tried: list[tuple[int, float | None]] = []
         legs = []
+        last_error: PhysicsError | None = None
         for N in range(1, st.max_stages + 1):
-            legs = _train(job, ctx, leg, st, N, i, s, P_out, eta_p, eta_s, eta_m)
+            try:
+                legs = _train(job, ctx, leg, st, N, i, s, P_out, eta_p, eta_s, eta_m)
+            except PhysicsError as exc:
+                # a trial whose discharge leaves the range of the equation of state is rejected, not an abort
+                tried.append((N, None))
+                last_error = exc
+                legs = []
+                continue
             Tmax = max(r.end.T for r in legs if r.process == "compressor")
             tried.append((N, Tmax))
             if Tmax <= limit:
                 break
         else:
+            hot = [T for _, T in tried if T is not None]
+            if not hot:
+                raise last_error
             raise _problem_at(job, st.T_max, Finding("staging.no_stage_count", {
-                "max_stages": st.max_stages, "entered": st.T_max.entered, "T": tried[-1][1]}))
+                "max_stages": st.max_stages, "entered": st.T_max.entered, "T": hot[-1] if hot else limit}))
         N = tried[-1][0]
         why = Finding("staging.fewest", {"limit": limit, "entered": st.T_max.entered, "stages": N,
                                          "trials": tuple(tried)})
         info = {"leg": leg.name, "stages": N, "rule": "fewest",
                 "limit": {"value": limit, "unit": "K"},
-                "trials": [{"stages": n, "max_discharge_temperature": {"value": T, "unit": "K"}} for n, T in tried]}
-    r = next(c for c in legs[0].calcs if c.symbol == "r_stage")
-    info["stage_ratio"] = r.value
+                "trials": [{"stages": n, "max_discharge_temperature": {"value": T, "unit": "K"}} if T is not None
+                           else {"stages": n, "max_discharge_temperature": None, "rejected": "eos_range"}
+                           for n, T in tried]}
+    if st.ratios or st.pressures:
+        info["stage_ratios"] = [r.end.P / r.start.P for r in legs if r.process == "compressor"]
+    r = next((c for c in legs[0].calcs if c.symbol == "r_stage"), None)
+    if r is not None:
+        info["stage_ratio"] = r.value
     legs[0] = _with(legs[0], facts=(why,) + legs[0].facts)
     return legs, info
 

@@ -141,6 +141,10 @@ NOTES: dict[str, str] = {
     "vessel.isothermal": "isothermal vessel: Q̇ holds the gas temperature constant",
     "vessel.wall": "heat from the wall: Q̇ = h·A·(T_w − T), m_w·c_w·dT_w/dt = −Q̇",
 }
+FACTS["staging.ratios"] = ("Staged into {stages} stages at the stage ratios the job gives; the last stage takes the "
+                           "rest of the ratio up to the end pressure.")
+FACTS["staging.pressures"] = ("Staged into {stages} stages at the interstage pressures the job gives; the last stage "
+                              "takes the rest of the ratio up to the end pressure.")
 FACTS["staging.given"] = ("Staged into {stages} stages with equal pressure ratios (allowing for the intercooler "
                           "pressure drops), as the job asks.")
 
@@ -158,7 +162,8 @@ EQUATIONS: dict[str, str] = {
 }
 
 #: The rules by which a compressor leg was staged (results file ``staging[].rule``).
-STAGING_RULES = {"given": "given number of stages", "fewest": "fewest stages under the discharge-temperature limit"}
+STAGING_RULES = {"given": "given number of stages", "ratios": "given stage ratios (the last stage takes the rest)",
+                 "pressures": "given interstage pressures (the last stage takes the rest)", "fewest": "fewest stages under the discharge-temperature limit"}
 
 
 def equation(text: str) -> str:
@@ -197,8 +202,10 @@ def _unmarked(v: dict, system: str) -> str:
 
 @_spoken("staging.fewest")
 def _fewest(v: dict, system: str) -> str:
-    steps = "; ".join(f"{n} stage{'s' if n > 1 else ''}: highest discharge {say_si(T, 'K', system, 4)} "
-                      f"({'within' if T <= v['limit'] else 'above'} the limit)" for n, T in v["trials"])
+    steps = "; ".join(f"{n} stage{'s' if n > 1 else ''}: " + (
+        "rejected, a discharge state lies outside the range of the equation of state" if T is None else
+        f"highest discharge {say_si(T, 'K', system, 4)} ({'within' if T <= v['limit'] else 'above'} the limit)")
+        for n, T in v["trials"])
     return (f"Fewest stages that keep every discharge temperature at or below {v['entered']}: {v['stages']}. "
             f"Trials with equal stage ratios: {steps}.")
 
