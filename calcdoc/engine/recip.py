@@ -16,8 +16,17 @@ from ..job.messages import problem
 from ..job.model import Cylinder as CylinderSpec, Job, LegSpec
 from ..physics.calc import Calc, Term
 from ..physics.closed import LegResult
-from ..physics.cylinder import (SETTLE_RTOL, Cylinder, cycle, displacement, face_areas, isentropic_exponent,
-                                rod_loads, settle, volumetric_efficiency)
+from ..physics.cylinder import (
+    SETTLE_RTOL,
+    Cylinder,
+    cycle,
+    displacement,
+    face_areas,
+    isentropic_exponent,
+    rod_loads,
+    settle,
+    volumetric_efficiency,
+)
 from ..physics.flowlegs import Ctx, machine
 from ..physics.gas import State
 from ..units import P_STD
@@ -150,9 +159,10 @@ class Plan:
                                                                          "eta": f.eta_v}), at=spec.clearance)])
         i, j = res.i, res.i + 1
         calcs, q, facts = _geometry_calcs(cyl, f.V_d)
+        first: tuple[Calc, ...] = ()
         if k in self.settled:
             P, n_eval = self.settled[k]
-            calcs.insert(0, Calc(f"P_{j}", P, "Pa", "~settled", "cylinder.settle", note="settled_pressure"))
+            first = (Calc(f"P_{j}", P, "Pa", "~settled", "cylinder.settle", note="settled_pressure"),)
             facts.append(Finding("cylinder.settled", {"P": P, "rtol": SETTLE_RTOL, "evaluations": n_eval}))
         calcs += _eta_v_calcs(self.ctx, spec, cyl, f, s1, s2, i, j, facts)
         V_in, m_cyl = f.eta_v * f.V_d, f.m
@@ -179,7 +189,7 @@ class Plan:
             math.log(s2.P / s1.P) / math.log(s1.v / s2.v)
         calcs += self._indicated(cyl, res, n_c, f.n_e, q)
         self.cylinders_json.append(self._json(leg, cyl, f, q, res, n_c))
-        return dataclasses.replace(res, calcs=res.calcs + tuple(calcs), quantities={**res.quantities, **q},
+        return dataclasses.replace(res, calcs=first + res.calcs + tuple(calcs), quantities={**res.quantities, **q},
                                    facts=res.facts + tuple(facts))
 
     def _rods(self, cyl: Cylinder, Ps: float, Pd: float, i: int, j: int, q: dict, facts: list) -> list[Calc]:
@@ -216,7 +226,7 @@ class Plan:
         Pi = W_sum * cyl.N * cyl.count
         ins = {"N": Term("N", cyl.N, "1/s"), "z": Term("z", float(cyl.count), "")}
         ins.update({f"W{k}": Term(c.symbol, c.value, "J") for k, c in enumerate(out)})
-        eq = "(" + " + ".join("{W%d}" % k for k in range(len(out))) + ")·{N}·{z}"
+        eq = "(" + " + ".join(f"{{W{k}}}" for k in range(len(out))) + ")·{N}·{z}"
         P_ind = Calc("P_ind", Pi, "W", eq, "cylinder.indicator", ins)
         out.append(P_ind)
         q["indicated_power"] = P_ind

@@ -251,6 +251,7 @@ def indicator_chart(cyl: dict, system: str) -> str:
     ax.set_xlabel(_label("cylinder volume V (head end)", "m**3|cyl", system))
     ax.set_ylabel(_label("pressure P (absolute)", "Pa", system))
     ax.set_xlim(left=0)
+    ax.set_ylim(bottom=0)
     ax.legend(fontsize=7.5, loc="upper right")
     out = _svg(fig)
     plt.close(fig)

@@ -6,8 +6,17 @@ import math
 
 import pytest
 
-from calcdoc.physics.cylinder import (Cylinder, cycle, displacement, face_areas, indicated_work,
-                                      isentropic_exponent, rod_loads, settle, volumetric_efficiency)
+from calcdoc.physics.cylinder import (
+    Cylinder,
+    cycle,
+    displacement,
+    face_areas,
+    indicated_work,
+    isentropic_exponent,
+    rod_loads,
+    settle,
+    volumetric_efficiency,
+)
 from calcdoc.physics.gas import IdealGas
 
 AIR = IdealGas("Air", 1.4, 0.0289647)
