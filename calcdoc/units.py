@@ -407,7 +407,7 @@ _PRETTY = {
     "m**3/kg": "m³/kg", "ft**3/lb": "ft³/lb", "kJ/kg": "kJ/kg", "Btu/lb": "Btu/lb", "kJ/(kg*K)": "kJ/(kg·K)",
     "Btu/(lb*degR)": "Btu/(lb·°R)", "kJ": "kJ", "Btu": "Btu", "kJ/K": "kJ/K", "Btu/degR": "Btu/°R", "kW": "kW",
     "hp": "hp", "Btu/hour": "Btu/h", "ft*lbf/lb": "ft·lbf/lb", "kg/s": "kg/s", "lb/hour": "lb/h", "kmol/h": "kmol/h", "lbmol/hour": "lbmol/h",
-    "L": "L", "in**3": "in³", "m**2": "m²", "in**2": "in²",
+    "L": "L", "in**3": "in³", "in**2": "in²",
     "m**3/h": "m³/h", "ft**3/min": "ft³/min", "kg/m**3": "kg/m³", "lb/ft**3": "lb/ft³", "": "",
     "g/mol": "g/mol", "lb/lbmol": "lb/lbmol", "m": "m", "ft": "ft", "K": "K", "Pa": "Pa",
     "J/kg": "J/kg", "J/(kg*K)": "J/(kg·K)", "J": "J", "J/K": "J/K", "W": "W", "m**3/s": "m³/s",
