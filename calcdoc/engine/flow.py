@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import dataclasses
 from dataclasses import dataclass
+from typing import Any
 
 from ..errors import Finding, JobError, PhysicsError
 from ..job.flowopts import direction_problem
@@ -100,7 +101,7 @@ def run_flow(job: Job) -> FlowResults:
     basis["flow"] = {"standard": None if job.start.standard_volume_flow is None else {
         "pressure": {"value": job.start.standard_pressure.si, "unit": "Pa"},
         "temperature": {"value": job.start.standard_temperature.si, "unit": "K"}}}
-    extra = {"totals": {c.symbol: {"value": c.value, "unit": c.unit} for c in totals}}
+    extra: dict[str, Any] = {"totals": {c.symbol: {"value": c.value, "unit": c.unit} for c in totals}}
     if staging_json:
         extra["staging"] = staging_json
     if plan.cylinders_json:
@@ -127,7 +128,7 @@ def _flow_calcs(job: Job, ctx: Ctx, s1: State, plan: Plan) -> dict[str, Calc]:
         if f.eta_v <= 0:
             raise JobError([problem(job, Finding("cylinder.no_gas", {"leg": job.legs[0].name, "eta": f.eta_v,
                                                                     "r": plan.P_d[0] / s1.P}),
-                                    at=job.legs[0].options.cylinder.clearance)])
+                                    at=plan.clearance(0))])
         m = f.m
         out["m_dot"] = Calc("ṁ", m, "kg/s", "{eta}·{Vd}/{v1}", "cylinder.mass_flow",
                             {"eta": Term("η_v", f.eta_v, ""), "Vd": Term("V̇_d", f.V_d, "m**3/s"),
@@ -225,7 +226,7 @@ def _drop(job: Job, drop, i: int, P1: float) -> tuple[float, Calc | None]:
                     {"P1": Term(f"P_{i}", P1, "Pa"), "dP": Term("ΔP", drop.absolute, "Pa")})
 
 
-def _given_discharge(job, st: Staging, k: int, N: int, Ps: float, P_out: float, i: int) -> tuple[float, Calc]:
+def _given_discharge(job: Job, st: Staging, k: int, N: int, Ps: float, P_out: float, i: int) -> tuple[float, Calc]:
     """The discharge pressure of stage k of a staging block with given ratios or interstage pressures."""
     j = i + 1
     if k == N - 1:
@@ -248,8 +249,8 @@ def _train(job, ctx, leg, st: Staging, N, i, s, P_out, eta_p, eta_s, eta_m,
            etas: tuple[float, ...] = ()) -> list[LegResult]:
     d = st.drop
     given = bool(st.ratios or st.pressures)
-    rcalc = None if given else stage_ratio_calc(s.P, P_out, N, d.fraction, d.absolute)
-    Ps = None if given else suction_pressures(s.P, rcalc.value, N, d.fraction, d.absolute)
+    rcalc = stage_ratio_calc(s.P, P_out, N, d.fraction, d.absolute)
+    Ps = suction_pressures(s.P, rcalc.value, N, d.fraction, d.absolute)
     out: list[LegResult] = []
     for k in range(N):
         first: tuple[Calc, ...] = ()
@@ -307,7 +308,7 @@ def _staged(job, ctx, leg, st: Staging, i, s, P_out, eta_p, eta_s, eta_m) -> tup
         else:
             hot = [T for _, T in tried if T is not None]
             if not hot:
-                raise last_error
+                raise last_error if last_error is not None else PhysicsError("staging.no_trial")
             raise _problem_at(job, st.T_max, Finding("staging.no_stage_count", {
                 "max_stages": st.max_stages, "entered": st.T_max.entered, "T": hot[-1] if hot else limit}))
         N = tried[-1][0]

@@ -10,10 +10,11 @@ from __future__ import annotations
 
 import dataclasses
 import math
+from typing import Any
 
 from ..errors import Finding, JobError, PhysicsError
 from ..job.messages import problem
-from ..job.model import Cylinder as CylinderSpec, Job, LegSpec
+from ..job.model import Cylinder as CylinderSpec, Input, Job, LegSpec
 from ..physics.calc import Calc, Term
 from ..physics.closed import LegResult
 from ..physics.cylinder import (
@@ -32,6 +33,13 @@ from ..physics.gas import State
 from ..units import P_STD
 
 __all__ = ["Plan", "geometry"]
+
+
+def _spec(leg: LegSpec) -> CylinderSpec:
+    """The cylinder block of a reciprocating leg (the job layer guarantees one)."""
+    spec = leg.options.cylinder
+    assert spec is not None, leg.name
+    return spec
 
 
 def geometry(spec: CylinderSpec) -> Cylinder:
@@ -60,8 +68,8 @@ class Plan:
         self.ctx = ctx
         self.index = {leg.name: k for k, leg in enumerate(job.legs)}
         self.P_d: dict[int, float] = {}
-        self.series_json: list[dict] = []
-        self.cylinders_json: list[dict] = []
+        self.series_json: list[dict[str, Any]] = []
+        self.cylinders_json: list[dict[str, Any]] = []
         self.warnings: list[Finding] = []
         self.settled: dict[int, tuple[float, int]] = {}    # leg index → (settled discharge pressure, evaluations)
         self._leg_name = ""
@@ -69,12 +77,16 @@ class Plan:
         self.sets_flow = job.start.mass_flow is None and job.start.molar_flow is None and \
             job.start.volume_flow is None and job.start.standard_volume_flow is None
 
+    def clearance(self, k: int) -> Input:
+        """The clearance input of reciprocating leg k (where a problem of its flow points)."""
+        return _spec(self.job.legs[k]).clearance
+
     # -- the flow of one cylinder ------------------------------------------------------------------------
     def flow(self, k: int, s_in: State, P_d: float, Z_d: float | None = None) -> _Flow:
         """The mass flow of reciprocating leg k from its suction state to P_d (Z_d from a discharge computed
         for the stage's efficiency when not given; 1 for an ideal gas)."""
         leg = self.job.legs[k]
-        spec = leg.options.cylinder
+        spec = _spec(leg)
         cyl = geometry(spec)
         n_e = spec.n_e.si if spec.n_e is not None else isentropic_exponent(self.ctx.gas, s_in)
         if Z_d is None:
@@ -150,7 +162,7 @@ class Plan:
         """The leg result of reciprocating leg k with its cylinder calcs, quantities and facts."""
         leg = self.job.legs[k]
         self._leg_name = leg.name
-        spec = leg.options.cylinder
+        spec = _spec(leg)
         cyl = geometry(spec)
         s1, s2 = res.start, res.end
         f = self.flow(k, s1, s2.P, Z_d=s2.Z if not self.ctx.ideal else 1.0)
@@ -192,7 +204,7 @@ class Plan:
         return dataclasses.replace(res, calcs=first + res.calcs + tuple(calcs), quantities={**res.quantities, **q},
                                    facts=res.facts + tuple(facts))
 
-    def _rods(self, cyl: Cylinder, Ps: float, Pd: float, i: int, j: int, q: dict, facts: list) -> list[Calc]:
+    def _rods(self, cyl: Cylinder, Ps: float, Pd: float, i: int, j: int, q: dict[str, Calc], facts: list[Finding]) -> list[Calc]:
         site = self.job.site.P_atm
         P_rod = site if site is not None else P_STD
         A_he, A_ce, A_rod = face_areas(cyl.D, cyl.d)
@@ -210,11 +222,12 @@ class Plan:
             self.warnings.append(Finding("cylinder.no_reversal", {"leg": self._leg_name, "Fc": F_c, "Ft": F_t}))
         return [C, T]
 
-    def _indicated(self, cyl: Cylinder, res: LegResult, n_c: float, n_e: float, q: dict) -> list[Calc]:
+    def _indicated(self, cyl: Cylinder, res: LegResult, n_c: float, n_e: float, q: dict[str, Calc]) -> list[Calc]:
         s1, s2 = res.start, res.end
         A_he, A_ce, _ = face_areas(cyl.D, cyl.d)
         ends = [("he", A_he)] + ([("ce", A_ce)] if cyl.double else [])
-        out, W_sum = [], 0.0
+        out: list[Calc] = []
+        W_sum = 0.0
         for tag, A in ends:
             V_s = A * cyl.S
             cy = cycle(s1.P, s2.P, V_s, cyl.c, n_c, n_e)
@@ -236,7 +249,8 @@ class Plan:
                             {"Pi": Term("P_ind", Pi, "W"), "Pg": Term("P_gas", gas.value, "W")}, note="indicated_ratio"))
         return out
 
-    def _json(self, leg: LegSpec, cyl: Cylinder, f: _Flow, q: dict, res: LegResult, n_c: float) -> dict:
+    def _json(self, leg: LegSpec, cyl: Cylinder, f: _Flow, q: dict[str, Calc], res: LegResult,
+              n_c: float) -> dict[str, Any]:
         """The cylinder's entry in the results file (geometry, exponents, reversal, indicator diagram)."""
         A_he, _, _ = face_areas(cyl.D, cyl.d)
         cy = cycle(res.start.P, res.end.P, A_he * cyl.S, cyl.c, n_c, f.n_e)
@@ -245,7 +259,7 @@ class Plan:
                 "rod": {"value": cyl.d, "unit": "m"}, "speed": {"value": cyl.N, "unit": "1/s"},
                 "clearance": cyl.c, "volumetric_loss": cyl.L, "re_expansion_exponent": f.n_e,
                 "compression_exponent": n_c,
-                "re_expansion_exponent_given": leg.options.cylinder.n_e is not None,
+                "re_expansion_exponent_given": _spec(leg).n_e is not None,
                 "Z_ratio": f.Z_s / f.Z_d,
                 "rod_load_reverses": q["rod_load_compression"].value > 0 and q["rod_load_tension"].value > 0,
                 "indicator_head_end": {p: {"V": {"value": list(V), "unit": "m**3"}, "P": {"value": list(P), "unit": "Pa"}}
@@ -253,7 +267,7 @@ class Plan:
                 "swept_volume_head_end": {"value": A_he * cyl.S, "unit": "m**3"}}
 
 
-def _geometry_calcs(cyl: Cylinder, V_d: float) -> tuple[list[Calc], dict, list]:
+def _geometry_calcs(cyl: Cylinder, V_d: float) -> tuple[list[Calc], dict[str, Calc], list[Finding]]:
     A_he, A_ce, A_rod = face_areas(cyl.D, cyl.d)
     D, d = Term("D", cyl.D, "m"), Term("d", cyl.d, "m")
     calcs = [Calc("A_he", A_he, "m**2", "π/4·{D}²", "cylinder.displacement", {"D": D})]
@@ -271,7 +285,7 @@ def _geometry_calcs(cyl: Cylinder, V_d: float) -> tuple[list[Calc], dict, list]:
 
 
 def _eta_v_calcs(ctx: Ctx, spec: CylinderSpec, cyl: Cylinder, f: _Flow, s1: State, s2: State, i: int, j: int,
-                 facts: list) -> list[Calc]:
+                 facts: list[Finding]) -> list[Calc]:
     out = []
     if spec.n_e is not None:
         out.append(Calc("n_e", f.n_e, "", "{n}", "input", {"n": Term("n_e", f.n_e, "")}))

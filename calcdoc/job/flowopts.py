@@ -244,7 +244,7 @@ def _series(o: _Options, legs: list[LegSpec], opts: list[LegOptions]) -> None:
             continue
         nxt = next((j for j in range(k + 1, len(legs)) if legs[j].process not in ("cooler", "heater")), None)
         followed = nxt is not None and opts[nxt].machine == "reciprocating"
-        if followed and leg.end:
+        if nxt is not None and followed and leg.end:
             o.add(o._leg_node(leg, "end"), f"'{leg.name}' is followed by the reciprocating stage "
                   f"'{legs[nxt].name}': the pressure between them is where both cylinders pass the same mass flow, "
                   "not an input", "remove end from this stage; give the end pressure on the last stage of the series")

@@ -106,6 +106,7 @@ MESSAGES: dict[str, tuple[str, str]] = {
     "cylinder.series_ratio": ("the last stage '{leg}' of a series of reciprocating stages gives a pressure ratio, but "
                               "its suction pressure is settled by the cylinders",
                               "give the end pressure of the series, for example end: {{pressure: 25 bara}}"),
+    "staging.no_trial": ("no staging trial could be computed", ""),
     "staging.rest_ratio": ("the given ratios or interstage pressures reach {P:Pa~6}, which leaves the last stage "
                            "no compression up to the end pressure {P_out:Pa~6}",
                            "give ratios or interstage pressures that stay below the end pressure"),

@@ -4,18 +4,18 @@ diagram, and the interstage pressures at which cylinders in series pass the same
 SI floats in and out: lengths [m], speed [rev/s], pressures [Pa] absolute, volumes [m³], forces [N].
 Clearance and volumetric loss are fractions of the swept volume. No words: codes only.
 
-References (also in :mod:`calcdoc.report.methods`): the displacement, the clearance volumetric efficiency and
-the ideal indicator diagram are the textbook analysis of the reciprocating compressor with clearance
-(Çengel, Boles & Kanoğlu 2019, ch. 7, and Moran et al. 2014, ch. 9 state the polytropic compression and
-re-expansion and the volumetric efficiency 1 − C·(r^(1/n) − 1)); the compressibility ratio Z_s/Z_d and the
-loss allowance L follow the same derivation for a real gas (the re-expanding clearance gas keeps its mass,
-so its volume scales with Z). Rod loads are a force balance on the piston and rod.
+References (as in :mod:`calcdoc.report.methods`): each relation is derived from first principles and the
+derivation is stated with the method: the geometry of the swept volume; the mass of the clearance gas, which
+re-expands along the polytropic relation P·V^n = const (Çengel, Boles & Kanoğlu 2019, ch. 4) before suction
+begins (its volume scaled by Z_s/Z_d for a real gas, as it keeps its mass); the boundary work of the four
+processes of the ideal loop; and the force balance on piston and rod.
 """
 from __future__ import annotations
 
 import math
 from collections.abc import Callable
 from dataclasses import dataclass
+from typing import Any
 
 from ..errors import PhysicsError
 from .gas import Gas, State
@@ -64,12 +64,12 @@ def displacement(cyl: Cylinder) -> float:
     Parameters: cyl, the cylinder (D, S, d [m], N [rev/s]). Returns the displacement [m³/s].
     Notes: a single-acting cylinder compresses on its head end only; the crank end of a double-acting
     cylinder loses the rod's cross-section.
-    References: Çengel, Boles & Kanoğlu (2019), ch. 7 (swept volume of a reciprocating compressor).
+    References: geometry of the swept volume (derivation stated in the method catalogue).
     Example: D = 0.2 m, S = 0.12 m, d = 0.04 m, N = 500/60 rev/s, double: 0.06158 m³/s.
     """
     A_he, A_ce, _ = face_areas(cyl.D, cyl.d)
     area = A_he + A_ce if cyl.double else A_he
-    return area * cyl.S * cyl.N * cyl.count
+    return float(area * cyl.S * cyl.N * cyl.count)
 
 
 def volumetric_efficiency(c: float, L: float, r: float, n_e: float, Z_ratio: float = 1.0) -> float:
@@ -82,11 +82,11 @@ def volumetric_efficiency(c: float, L: float, r: float, n_e: float, Z_ratio: flo
     Notes: the clearance gas left at discharge pressure re-expands along P·V^n_e = const before the suction
     valve opens; only the rest of the stroke draws gas in. A value at or below zero means the cylinder
     passes no gas at this ratio.
-    References: Çengel, Boles & Kanoğlu (2019), ch. 7; Moran et al. (2014), ch. 9 (reciprocating compressor
-    with clearance).
-    Example: c = 0.15, L = 0, r = 3, n_e = 1.3: η_v = 1 − 0.15·(3^(1/1.3) − 1) = 0.8011.
+    References: derived from the mass of the clearance gas re-expanding along P·V^n_e = const (the
+    polytropic relation of Çengel, Boles & Kanoğlu 2019, ch. 4); the catalogue entry states the derivation.
+    Example: c = 0.15, L = 0, r = 3, n_e = 1.3: η_v = 1 − 0.15·(3^(1/1.3) − 1) = 0.8008.
     """
-    return 1.0 - L - c * (Z_ratio * r ** (1.0 / n_e) - 1.0)
+    return float(1.0 - L - c * (Z_ratio * r ** (1.0 / n_e) - 1.0))
 
 
 def rod_loads(D: float, d: float, P_s: float, P_d: float, P_rod: float, double: bool) -> tuple[float, float]:
@@ -105,6 +105,7 @@ def rod_loads(D: float, d: float, P_s: float, P_d: float, P_rod: float, double: 
     Notes: a free-body balance of piston and rod at the dead points of each stroke (no inertia, valve losses
     or pulsation): compression at the end of the head-end stroke, tension at the end of the crank-end stroke.
     The load reverses every revolution when both are positive.
+    References: force balance on piston and rod (derivation stated in the method catalogue).
     Example: D = 0.2 m, d = 0.04 m, P_s = 3 bar, P_d = 9 bar, P_rod = 1.01325 bar:
     F_c = 900000·0.0314159 − 300000·0.0301593 − 101325·0.00125664 = 19 099 N.
     """
@@ -139,8 +140,8 @@ def indicated_work(P_s: float, P_d: float, V_s: float, c: float, n_c: float, n_e
     Notes: compression along P·V^n_c = const, discharge at P_d, re-expansion of the clearance gas along
     P·V^n_e = const, suction at P_s; no valve losses. With n_c = n_e = n this is the familiar
     n/(n − 1)·P_s·(V_1 − V_4)·(r^((n−1)/n) − 1).
-    References: Çengel, Boles & Kanoğlu (2019), ch. 4 (polytropic boundary work) and ch. 7 (the compressor
-    cycle with clearance).
+    References: Çengel, Boles & Kanoğlu (2019), ch. 4 (polytropic boundary work); the four processes of the
+    loop are stated in the method catalogue.
     Example: P_s = 1 bar, P_d = 3 bar, V_s = 1 L, c = 0, n_c = 1.4: W = 3.5·100 J·(3^(0.4/1.4) − 1) = 128.2 J.
     """
     V1, V2, V3, V4 = _corners(P_s, P_d, V_s, c, n_c, n_e)
@@ -222,7 +223,7 @@ def settle(P_in: float, P_out: float, n: int, flow: Callable[[int, float, float]
         for k in range(1, n - 1):
             if Ps >= P_out:
                 raise PhysicsError("cylinder.no_common_flow", P=Ps)
-            y = _root(lambda P, k=k, Ps=Ps: m - m_of(k, Ps, P), Ps, P_out, brentq)
+            y = _root(_gap(m_of, m, k, Ps), Ps, P_out, brentq)
             pd.append(y)
             Ps = suction_after(k, y)
         if Ps >= P_out:
@@ -233,11 +234,16 @@ def settle(P_in: float, P_out: float, n: int, flow: Callable[[int, float, float]
     return chain(x)[1] + [P_out], count[0]
 
 
-def _root(g: Callable[[float], float], lo: float, hi: float, brentq) -> float:
+def _gap(m_of: Callable[[int, float, float], float], m: float, k: int, Ps: float) -> Callable[[float], float]:
+    """The shortfall of stage k's flow from m at a discharge pressure, for the root finder."""
+    return lambda P: m - m_of(k, Ps, P)
+
+
+def _root(g: Callable[[float], float], lo: float, hi: float, brentq: Callable[..., Any]) -> float:
     """A root of g between lo and hi (both ends open): a bracket on a geometric grid, then Brent's method.
     No change of sign on the grid is a PhysicsError (the cylinders cannot pass one flow between these ends)."""
-    xs = [lo * (hi / lo) ** ((k + 0.5) / SETTLE_GRID) for k in range(SETTLE_GRID)]
-    prev = None
+    xs: list[float] = [lo * (hi / lo) ** ((k + 0.5) / SETTLE_GRID) for k in range(SETTLE_GRID)]
+    prev: tuple[float, float] | None = None
     for x in xs:
         try:
             gx = g(x)
@@ -246,7 +252,8 @@ def _root(g: Callable[[float], float], lo: float, hi: float, brentq) -> float:
         if gx == 0.0:
             return x
         if prev is not None and (gx > 0) != (prev[1] > 0) and math.isfinite(gx) and math.isfinite(prev[1]):
-            return brentq(g, prev[0], x, rtol=SETTLE_RTOL, xtol=1e-9 * lo, maxiter=200)
+            root: float = brentq(g, prev[0], x, rtol=SETTLE_RTOL, xtol=1e-9 * lo, maxiter=200)
+            return root
         prev = (x, gx)
     if prev is None:
         raise PhysicsError("cylinder.no_common_flow", P=hi)

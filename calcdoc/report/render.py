@@ -124,7 +124,8 @@ def context(results) -> dict:
     if results.extra.get("sweep"):
         charts["sweep"] = sweep_chart(results.extra["sweep"], system)
     if results.extra.get("cylinders"):
-        charts["indicator"] = [(c["leg"], indicator_chart(c, system)) for c in results.extra["cylinders"]]
+        charts["indicator"] = [(c["leg"], indicator_chart(c, system))    # type: ignore[assignment]
+                               for c in results.extra["cylinders"]]
     return {
         "r": results,
         "job": job,
