@@ -187,3 +187,36 @@ def test_staging_search_rejects_a_trial_outside_the_equation_of_state(run_flow_t
     assert trials[0]["rejected"] == "eos_range" and trials[0]["max_discharge_temperature"] is None
     assert res.extra["staging"][0]["stages"] > 1
     assert any("rejected" in said(res, [f])[0] for f in res.legs[0].facts if f.code == "staging.fewest")
+
+
+def test_a_cylinder_that_passes_no_gas_points_at_its_clearance(run_flow_text):
+    legs = """\
+- name: Stage 1
+  process: compressor
+  machine: reciprocating
+  cylinder: {bore: 250 mm, stroke: 150 mm, rod: 45 mm, speed: 600 rpm, clearance: 60 %, action: double}
+  efficiency: {isentropic: 0.80}
+  end: {pressure: 9 bar}
+"""
+    # 1 − 0.6·(9^(1/1.4) − 1) < 0 (closed form): the clearance gas fills the stroke
+    with pytest.raises(JobError) as e:
+        run_flow_text(flow_job(AIR, "{pressure: 1 bar, temperature: 25 degC}", legs))
+    p = e.value.problems[0]
+    assert p.path == "legs[0].cylinder.clearance" and "passes no gas" in p.found
+
+
+def test_a_sweep_can_vary_the_clearance_and_follow_the_capacity(run_flow_text):
+    legs = f"""\
+- name: Stage 1
+  process: compressor
+  machine: reciprocating
+  cylinder: {CYL1}
+  efficiency: {{isentropic: 0.80}}
+  end: {{pressure: 3 bar}}
+"""
+    sweep = ("sweep:\n  input: legs[Stage 1].cylinder.clearance\n  values: [8 %, 20 %]\n"
+             "  follow: [volumetric_efficiency]\n")
+    res = run_flow_text(flow_job(AIR, "{pressure: 1 bar, temperature: 25 degC, mass_flow: 0.1 kg/s}", legs, sweep))
+    k = res.gas.k
+    vals = res.extra["sweep"]["series"][0]["values"]
+    assert vals == pytest.approx([1 - c * (3 ** (1 / k) - 1) for c in (0.08, 0.20)], rel=1e-12)   # closed form
