@@ -413,7 +413,7 @@ _PRETTY = {
     "J/kg": "J/kg", "J/(kg*K)": "J/(kg·K)", "J": "J", "J/K": "J/K", "W": "W", "m**3/s": "m³/s",
     "kg/mol": "kg/mol", "mol/s": "mol/s", "s": "s", "m**2": "m²", "ft**2": "ft²",
     "W/(m**2*K)": "W/(m²·K)", "Btu_it/(hour*ft**2*degR)": "Btu/(h·ft²·°R)",
-    "kg/mol": "kg/mol", "mol/s": "mol/s", "kN": "kN", "lbf": "lbf", "N": "N", "mm": "mm", "inch": "in",
+    "kN": "kN", "lbf": "lbf", "N": "N", "mm": "mm", "inch": "in",
     "1/s": "rev/s",
     "Btu_it/lb": "Btu/lb", "Btu_it/(lb*degR)": "Btu/(lb·°R)", "Btu_it": "Btu", "Btu_it/degR": "Btu/°R",
 }

@@ -227,6 +227,9 @@ def time_chart(results, system: str) -> str:
     for ax in (axP, axT):
         ax.legend(fontsize=7, loc="best")
     fig.tight_layout()
+    out = _svg(fig)
+    plt.close(fig)
+    return out
 
 
 #: The processes of the ideal indicator diagram as the chart labels them (corner numbers of the cycle).
