@@ -59,6 +59,8 @@ DIMENSIONS: dict[str, str] = {
     "volume_flow": "m**3/s",
     "standard_volume_flow": "m**3/s",
     "density": "kg/m**3",
+    "force": "N",
+    "rotational_speed": "1/s",       # revolutions per second (read by the job layer's own speed reader)
     "dimensionless": "",
     "time": "s",
     "area": "m**2",
@@ -239,6 +241,7 @@ _EXAMPLES = {
     "specific_energy": "'120 kJ/kg'",
     "specific_volume": "'0.1 m3/kg'",
     "energy": "'10 kJ'",
+    "force": "'60 kN' or '13500 lbf'",
     "dimensionless": "'3.5'",
 }
 
@@ -394,13 +397,13 @@ _SYSTEMS = {
         "Pa": "kPa", "K": "degC", "m**3": "m**3", "kg": "kg", "m**3/kg": "m**3/kg",
         "J/kg": "kJ/kg", "J/(kg*K)": "kJ/(kg*K)", "J": "kJ", "J/K": "kJ/K", "W": "kW",
         "kg/s": "kg/s", "mol/s": "kmol/h", "m**3/s": "m**3/h", "kg/m**3": "kg/m**3", "": "",
-        "kg/mol": "g/mol", "m": "m", "s": "s", "m**2": "m**2", "W/(m**2*K)": "W/(m**2*K)",
+        "kg/mol": "g/mol", "m": "m", "s": "s", "m**2": "m**2", "W/(m**2*K)": "W/(m**2*K)", "N": "kN", "1/s": "1/s",
     },
     "US": {
         "Pa": "psi", "K": "degF", "m**3": "ft**3", "kg": "lb", "m**3/kg": "ft**3/lb",
         "J/kg": "Btu_it/lb", "J/(kg*K)": "Btu_it/(lb*degR)", "J": "Btu_it", "J/K": "Btu_it/degR", "W": "hp",
         "kg/s": "lb/hour", "mol/s": "lbmol/hour", "m**3/s": "ft**3/min", "kg/m**3": "lb/ft**3", "": "",
-        "kg/mol": "lb/lbmol", "m": "ft", "s": "s", "m**2": "ft**2", "W/(m**2*K)": "Btu_it/(hour*ft**2*degR)",
+        "kg/mol": "lb/lbmol", "m": "ft", "s": "s", "m**2": "ft**2", "W/(m**2*K)": "Btu_it/(hour*ft**2*degR)", "N": "lbf", "1/s": "1/s",
     },
 }
 _PRETTY = {
@@ -408,11 +411,14 @@ _PRETTY = {
     "m**3/kg": "m³/kg", "ft**3/lb": "ft³/lb", "kJ/kg": "kJ/kg", "Btu/lb": "Btu/lb", "kJ/(kg*K)": "kJ/(kg·K)",
     "Btu/(lb*degR)": "Btu/(lb·°R)", "kJ": "kJ", "Btu": "Btu", "kJ/K": "kJ/K", "Btu/degR": "Btu/°R", "kW": "kW",
     "hp": "hp", "Btu/hour": "Btu/h", "ft*lbf/lb": "ft·lbf/lb", "kg/s": "kg/s", "lb/hour": "lb/h", "kmol/h": "kmol/h", "lbmol/hour": "lbmol/h",
+    "L": "L", "in**3": "in³", "in**2": "in²",
     "m**3/h": "m³/h", "ft**3/min": "ft³/min", "kg/m**3": "kg/m³", "lb/ft**3": "lb/ft³", "": "",
     "g/mol": "g/mol", "lb/lbmol": "lb/lbmol", "m": "m", "ft": "ft", "K": "K", "Pa": "Pa",
     "J/kg": "J/kg", "J/(kg*K)": "J/(kg·K)", "J": "J", "J/K": "J/K", "W": "W", "m**3/s": "m³/s",
     "kg/mol": "kg/mol", "mol/s": "mol/s", "s": "s", "m**2": "m²", "ft**2": "ft²",
     "W/(m**2*K)": "W/(m²·K)", "Btu_it/(hour*ft**2*degR)": "Btu/(h·ft²·°R)",
+    "kN": "kN", "lbf": "lbf", "N": "N", "mm": "mm", "inch": "in",
+    "1/s": "rev/s",
     "Btu_it/lb": "Btu/lb", "Btu_it/(lb*degR)": "Btu/(lb·°R)", "Btu_it": "Btu", "Btu_it/degR": "Btu/°R",
 }
 
@@ -422,6 +428,8 @@ _PRETTY = {
 _FLAVOURS = {
     ("W|heat", "SI"): "kW", ("W|heat", "US"): "Btu/hour",
     ("J/kg|head", "SI"): "kJ/kg", ("J/kg|head", "US"): "ft*lbf/lb",
+    ("m|bore", "SI"): "mm", ("m|bore", "US"): "inch",       # machine dimensions (bore, stroke, rod)
+    ("m**3|cyl", "SI"): "L", ("m**3|cyl", "US"): "in**3",   # cylinder volumes
 }
 
 

@@ -84,8 +84,9 @@ def build_parser() -> argparse.ArgumentParser:
     d.add_argument("--against", metavar="REV", help="compare JOB.yaml with itself at a git revision (e.g. HEAD~1)")
     sub.add_parser("schema", help="print the JSON Schema of the job file (for editors)")
     n = sub.add_parser("new", help="write a commented starter job file")
-    n.add_argument("--system", choices=("closed", "flow", "vessel"), default="closed",
-                   help="closed (fixed mass), flow (steady flow) or vessel (fills and empties over time)")
+    n.add_argument("--system", choices=("closed", "flow", "vessel", "reciprocating"), default="closed",
+                   help="closed (fixed mass), flow (steady flow), vessel (fills and empties over time) or "
+                        "reciprocating (a flow job with reciprocating cylinders)")
     n.add_argument("path", metavar="FILE.yaml", nargs="?", help="where to write it (default: print it)")
     n.add_argument("--force", action="store_true", help="overwrite FILE.yaml if it exists")
     st = sub.add_parser("selftest", help="verify this installation: run every shipped reference case and write a "

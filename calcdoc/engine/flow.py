@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import dataclasses
 from dataclasses import dataclass
+from typing import Any
 
 from ..errors import Finding, JobError, PhysicsError
 from ..job.flowopts import direction_problem
@@ -26,6 +27,7 @@ from ..physics.staging import stage_ratio_calc, suction_pressures
 from .common import gas_findings, job_basis, make_gas, saturation_near, site_calcs, software_versions
 from .diagnose import ideal_condensation_warnings, phase_warnings
 from .moist import condensate_total, dry_flow_calc, moist_setup, moist_states, moist_warnings
+from .recip import Plan
 from .results import Results, StateRecord
 
 __all__ = ["FlowResults", "run_flow"]
@@ -64,7 +66,8 @@ def run_flow(job: Job) -> FlowResults:
         s1 = ctx.state(P1, T1)
     except PhysicsError as exc:
         raise JobError([problem(job, Finding("start.not_computed", {"error": exc}, "start"))]) from None
-    flow = _flow_calcs(job, ctx, s1)
+    plan = Plan(job, ctx)
+    flow = _flow_calcs(job, ctx, s1, plan)
     ctx.m_dot = flow["m_dot"].value
     start_calcs = site_calcs(job) + list(gas_calcs) + (moist[1] if moist else []) + [
         Calc("v_1", s1.v, "m**3/kg", "v(P_1, T_1)", ctx.gas.eos_method)]
@@ -76,7 +79,7 @@ def run_flow(job: Job) -> FlowResults:
     s = s1
     for leg in job.legs:
         try:
-            made, info = _leg(job, ctx, leg, leg.options, len(legs) + 1, s)
+            made, info = _leg(job, ctx, leg, leg.options, len(legs) + 1, s, plan)
         except TwoPhaseError as exc:
             target = (leg.end.get("pressure") or leg.end.get("pressure_ratio") or leg.end.get("temperature"))
             raise _problem_at(job, target, Finding("leg.two_phase", {"leg": leg.name, "process": leg.process,
@@ -97,6 +100,7 @@ def run_flow(job: Job) -> FlowResults:
                                                                   "x": e.quality}))
             legs.append(res)
             s = res.end
+    warnings += plan.warnings
     states = [s1] + [leg.end for leg in legs]
     hums, flows = (moist_states(moist[0].W, flow["m_dot"].value, states, legs) if moist else
                    ([None] * len(states), [ctx.m_dot] * len(states)))
@@ -113,9 +117,13 @@ def run_flow(job: Job) -> FlowResults:
     basis["flow"] = {"standard": None if job.start.standard_volume_flow is None else {
         "pressure": {"value": job.start.standard_pressure.si, "unit": "Pa"},
         "temperature": {"value": job.start.standard_temperature.si, "unit": "K"}}}
-    extra = {"totals": {c.symbol: {"value": c.value, "unit": c.unit} for c in totals}}
+    extra: dict[str, Any] = {"totals": {c.symbol: {"value": c.value, "unit": c.unit} for c in totals}}
     if staging_json:
         extra["staging"] = staging_json
+    if plan.cylinders_json:
+        extra["cylinders"] = plan.cylinders_json
+    if plan.series_json:
+        extra["interstage"] = plan.series_json
     if eos is not None:
         extra["eos_flashes"] = getattr(gas, "flashes", 0) + (moist[0].moist.flashes if moist else 0)  # type: ignore[assignment]
     if moist:
@@ -125,11 +133,26 @@ def run_flow(job: Job) -> FlowResults:
                        basis, software_versions(), extra, _dome(ctx, gas, legs), totals=totals)
 
 
-def _flow_calcs(job: Job, ctx: Ctx, s1: State) -> dict[str, Calc]:
+def _flow_calcs(job: Job, ctx: Ctx, s1: State, plan: Plan) -> dict[str, Calc]:
     st = job.start
     M = ctx.gas.M
     out: dict[str, Calc] = {}
-    if st.mass_flow is not None:
+    if plan.sets_flow:
+        # the first leg's cylinder sets the flow (the job layer allows no flow only then)
+        try:
+            f = plan.flow(0, s1, plan.discharge(0, s1))
+        except PhysicsError as exc:
+            raise JobError([problem(job, Finding("leg.flow_failed", {"leg": job.legs[0].name, "error": exc},
+                                                 f"{job.legs[0].path}.cylinder"))]) from None
+        if f.eta_v <= 0:
+            raise JobError([problem(job, Finding("cylinder.no_gas", {"leg": job.legs[0].name, "eta": f.eta_v,
+                                                                    "r": plan.P_d[0] / s1.P}),
+                                    at=plan.clearance(0))])
+        m = f.m
+        out["m_dot"] = Calc("ṁ", m, "kg/s", "{eta}·{Vd}/{v1}", "cylinder.mass_flow",
+                            {"eta": Term("η_v", f.eta_v, ""), "Vd": Term("V̇_d", f.V_d, "m**3/s"),
+                             "v1": Term("v_1", s1.v, "m**3/kg")}, note=Finding("set_by_cylinder", {"leg": job.legs[0].name}))
+    elif st.mass_flow is not None:
         m = st.mass_flow.si
         out["m_dot"] = Calc("ṁ", m, "kg/s", "{m}", "input", {"m": Term("ṁ", m, "kg/s")})
     elif st.molar_flow is not None:
@@ -177,7 +200,8 @@ def _target_inp(leg: LegSpec):
     return leg.end.get("pressure") or leg.end.get("pressure_ratio")
 
 
-def _leg(job: Job, ctx: Ctx, leg: LegSpec, opt: LegOptions, i: int, s: State) -> tuple[list[LegResult], dict]:
+def _leg(job: Job, ctx: Ctx, leg: LegSpec, opt: LegOptions, i: int, s: State,
+         plan: Plan) -> tuple[list[LegResult], dict]:
     proc = leg.process
     wrong_way = direction_problem(job, leg, s.P, s.T)
     if wrong_way is not None:
@@ -186,6 +210,13 @@ def _leg(job: Job, ctx: Ctx, leg: LegSpec, opt: LegOptions, i: int, s: State) ->
         T2 = leg.end["temperature"].si
         P2, dcalc = _drop(job, opt.drop, i, s.P)
         return [_exchanger(ctx, leg.name, proc, i, s, P2, T2, dcalc)], {}
+    if opt.machine == "reciprocating":
+        k = plan.index[leg.name]
+        P2 = plan.discharge(k, s)
+        T2m = leg.end["temperature"].si if "temperature" in leg.end else None
+        res = machine(ctx, leg.name, proc, i, s, P2, opt.eta_p.si if opt.eta_p else None,
+                      opt.eta_s.si if opt.eta_s else None, opt.eta_m.si if opt.eta_m else None, T2m)
+        return [plan.attach(k, res)], {}
     P2 = _end_pressure(job, leg, s)
     if proc == "throttle":
         return [throttle(ctx, leg.name, i, s, P2)], {}
@@ -222,17 +253,46 @@ def _drop(job: Job, drop, i: int, P1: float) -> tuple[float, Calc | None]:
                     {"P1": Term(f"P_{i}", P1, "Pa"), "dP": Term("ΔP", drop.absolute, "Pa")})
 
 
-def _train(job, ctx, leg, st: Staging, N, i, s, P_out, eta_p, eta_s, eta_m) -> list[LegResult]:
+def _given_discharge(job: Job, st: Staging, k: int, N: int, Ps: float, P_out: float, i: int) -> tuple[float, Calc]:
+    """The discharge pressure of stage k of a staging block with given ratios or interstage pressures."""
+    j = i + 1
+    if k == N - 1:
+        if P_out <= Ps:
+            given = (st.ratios or st.pressures)[-1]
+            raise _problem_at(job, given, Finding("staging.rest_ratio", {"P": Ps, "P_out": P_out}))
+        return P_out, Calc("r_last", P_out / Ps, "", "{Pout}/{Ps}", "staging.given",
+                           {"Pout": Term("P_out", P_out, "Pa"), "Ps": Term(f"P_{i}", Ps, "Pa")}, note="rest_ratio")
+    if st.ratios:
+        r = st.ratios[k].si
+        return r * Ps, Calc(f"P_{j}", r * Ps, "Pa", "{r}·{Ps}", "staging.given",
+                            {"r": Term(f"r_{k + 1}", r, ""), "Ps": Term(f"P_{i}", Ps, "Pa")}, note="given_ratio")
+    P = st.pressures[k].si
+    if P <= Ps:
+        raise _problem_at(job, st.pressures[k], Finding("staging.rest_ratio", {"P": Ps, "P_out": P}))
+    return P, Calc(f"P_{j}", P, "Pa", "{P}", "input", {"P": Term(f"P_{j}", P, "Pa")}, note="given_pressure")
+
+
+def _train(job, ctx, leg, st: Staging, N, i, s, P_out, eta_p, eta_s, eta_m,
+           etas: tuple[float, ...] = ()) -> list[LegResult]:
     d = st.drop
+    given = bool(st.ratios or st.pressures)
     rcalc = stage_ratio_calc(s.P, P_out, N, d.fraction, d.absolute)
     Ps = suction_pressures(s.P, rcalc.value, N, d.fraction, d.absolute)
     out: list[LegResult] = []
     for k in range(N):
-        Pd = rcalc.value * Ps[k] if k < N - 1 else P_out
+        first: tuple[Calc, ...] = ()
+        if given:
+            Pd, pc = _given_discharge(job, st, k, N, s.P, P_out, i)
+            first = (pc,)
+        else:
+            Pd = rcalc.value * Ps[k] if k < N - 1 else P_out
+            first = (rcalc,) if k == 0 else ()
+        if etas:
+            eta_p, eta_s = (etas[k], None) if eta_p is not None else (None, etas[k])
         res = machine(ctx, f"{leg.name}, stage {k + 1}" if N > 1 else leg.name, "compressor", i, s, Pd,
                       eta_p, eta_s, eta_m, None)
-        if k == 0:
-            res = _with(res, calcs=(rcalc,) + res.calcs)
+        if first:
+            res = _with(res, calcs=first + res.calcs)
         out.append(res)
         s, i = res.end, i + 1
         if k < N - 1:
@@ -247,31 +307,50 @@ def _train(job, ctx, leg, st: Staging, N, i, s, P_out, eta_p, eta_s, eta_m) -> l
 
 
 def _staged(job, ctx, leg, st: Staging, i, s, P_out, eta_p, eta_s, eta_m) -> tuple[list[LegResult], dict]:
-    if st.stages is not None:
-        legs = _train(job, ctx, leg, st, st.stages, i, s, P_out, eta_p, eta_s, eta_m)
-        why = Finding("staging.given", {"stages": st.stages})
-        info = {"leg": leg.name, "stages": st.stages, "rule": "given"}
+    etas = tuple(e.si for e in leg.options.eta_stages)
+    if st.fixed is not None:
+        N = st.fixed
+        legs = _train(job, ctx, leg, st, N, i, s, P_out, eta_p, eta_s, eta_m, etas)
+        rule = "ratios" if st.ratios else "pressures" if st.pressures else "given"
+        why = Finding(f"staging.{rule}" if rule != "given" else "staging.given", {"stages": N})
+        info = {"leg": leg.name, "stages": N, "rule": rule}
     else:
         limit = st.T_max.si
-        tried = []
+        tried: list[tuple[int, float | None]] = []
         legs = []
+        last_error: PhysicsError | None = None
         for N in range(1, st.max_stages + 1):
-            legs = _train(job, ctx, leg, st, N, i, s, P_out, eta_p, eta_s, eta_m)
+            try:
+                legs = _train(job, ctx, leg, st, N, i, s, P_out, eta_p, eta_s, eta_m)
+            except PhysicsError as exc:
+                # a trial whose discharge leaves the range of the equation of state is rejected, not an abort
+                tried.append((N, None))
+                last_error = exc
+                legs = []
+                continue
             Tmax = max(r.end.T for r in legs if r.process == "compressor")
             tried.append((N, Tmax))
             if Tmax <= limit:
                 break
         else:
+            hot = [T for _, T in tried if T is not None]
+            if not hot:
+                raise last_error if last_error is not None else PhysicsError("staging.no_trial")
             raise _problem_at(job, st.T_max, Finding("staging.no_stage_count", {
-                "max_stages": st.max_stages, "entered": st.T_max.entered, "T": tried[-1][1]}))
+                "max_stages": st.max_stages, "entered": st.T_max.entered, "T": hot[-1] if hot else limit}))
         N = tried[-1][0]
         why = Finding("staging.fewest", {"limit": limit, "entered": st.T_max.entered, "stages": N,
                                          "trials": tuple(tried)})
         info = {"leg": leg.name, "stages": N, "rule": "fewest",
                 "limit": {"value": limit, "unit": "K"},
-                "trials": [{"stages": n, "max_discharge_temperature": {"value": T, "unit": "K"}} for n, T in tried]}
-    r = next(c for c in legs[0].calcs if c.symbol == "r_stage")
-    info["stage_ratio"] = r.value
+                "trials": [{"stages": n, "max_discharge_temperature": {"value": T, "unit": "K"}} if T is not None
+                           else {"stages": n, "max_discharge_temperature": None, "rejected": "eos_range"}
+                           for n, T in tried]}
+    if st.ratios or st.pressures:
+        info["stage_ratios"] = [r.end.P / r.start.P for r in legs if r.process == "compressor"]
+    r = next((c for c in legs[0].calcs if c.symbol == "r_stage"), None)
+    if r is not None:
+        info["stage_ratio"] = r.value
     legs[0] = _with(legs[0], facts=(why,) + legs[0].facts)
     return legs, info
 

@@ -77,6 +77,7 @@ class _Validator(Reader):
         super().__init__(name, required_hints=_REQUIRED_HINT)
         self.option_nodes: dict[str, dict[str, Node]] = {}
         self.vessel_node: Node | None = None
+        self.no_flow: Node | None = None
 
     # -- sections ---------------------------------------------------------------------------------
     def job(self, tree: Node, data: bytes) -> Job | None:
@@ -104,6 +105,10 @@ class _Validator(Reader):
         self.vessel_node = top.get("vessel")
         start = self.start(top.get("start"), system)
         legs = self.legs(top.get("legs"), system)
+        if self.no_flow is not None and not self._cylinder_first(top.get("legs")):
+            self.add(self.no_flow, "no flow is given, and the first leg is not a reciprocating stage whose cylinder "
+                     "sets it", "give exactly one of mass_flow, molar_flow, volume_flow or standard_volume_flow, or "
+                     "make the first leg a compressor with machine: reciprocating and its cylinder")
         assumptions = tuple(self.text(n) for n in self.seq(top.get("assumptions")))
         self.seq(top.get("limits"))
         if self.problems or calc is None or gas is None or start is None or system is None or unit_system is None:
@@ -112,6 +117,15 @@ class _Validator(Reader):
             return None
         return Job(self.name, data, hashlib.sha256(data).hexdigest(), calc, unit_system, site, gas, system,
                    start, tuple(legs), (), assumptions, (), {}, leaves(tree), vessel=vessel)
+
+    @staticmethod
+    def _cylinder_first(node: Node | None) -> bool:
+        """Whether the first leg is a compressor with machine: reciprocating (its cylinder sets the flow)."""
+        if node is None or node.kind != "seq" or not node.value or node.value[0].kind != "map":
+            return False
+        first = node.value[0].value
+        return all(k in first and first[k].kind == "scalar" for k in ("process", "machine")) and \
+            str(first["process"].value).strip() == "compressor" and str(first["machine"].value).strip() == "reciprocating"
 
     def references(self, tree: Node, job: Job) -> Job:
         """The second pass: steady-flow leg options, limits and sweep, which refer to the legs and inputs."""
@@ -318,7 +332,9 @@ class _Validator(Reader):
         vals = {k: self.quantity(m.get(k), kinds[k]) for k in kinds if k in keys}
         amount = [k for k in (("mass_flow", "molar_flow", "volume_flow", "standard_volume_flow") if system == "flow"
                               else ("volume", "mass")) if k in m]
-        if len(amount) != 1 and m and system != "vessel":
+        if not amount and m and system == "flow":
+            self.no_flow = node     # allowed when the first leg is a reciprocating stage (checked with the legs)
+        elif len(amount) != 1 and m and system != "vessel":
             which = "mass_flow, molar_flow, volume_flow or standard_volume_flow" if system == "flow" else "volume or mass"
             self.add(node, f"{'no amount of gas' if not amount else 'more than one amount: ' + ', '.join(amount)} is given",
                      f"give exactly one of {which}")
@@ -369,7 +385,11 @@ class _Validator(Reader):
             return read_vessel_leg(self, node, self.vessel_node)
         flow = system == "flow"
         allowed = _FLOW_LEG_KEYS if flow else _CLOSED_LEG_KEYS
-        m = self.mapping(node, allowed, required=("name", "process", "end"), what="a leg")
+        mach = node.value.get("machine") if node.kind == "map" else None
+        # a reciprocating stage followed by another leaves its end pressure to the cylinders
+        settled = flow and mach is not None and mach.kind == "scalar" and str(mach.value).strip() == "reciprocating"
+        m = self.mapping(node, allowed, required=("name", "process") if settled else ("name", "process", "end"),
+                         what="a leg")
         if not m:
             return None
         name = self.text(m.get("name"), required=True, what="leg name", most=MAX_NAME)
@@ -406,7 +426,8 @@ class _Validator(Reader):
                     self._check_closed_targets(node, m["end"], process, given, "n" in m)
         if flow:
             self.option_nodes[node.path] = {k: m[k] for k in FLOW_OPTION_KEYS if k in m}
-        if not name or process is None or "end" not in m or len(end) != len(m["end"].value if m["end"].kind == "map" else ()):
+        if not name or process is None or ("end" not in m and not settled) or \
+                ("end" in m and len(end) != len(m["end"].value if m["end"].kind == "map" else ())):
             return None
         return LegSpec(name, process, node.path, *node.where, end=end, n=n,
                        note=self.text(m.get("note")))

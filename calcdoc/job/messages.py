@@ -96,6 +96,21 @@ MESSAGES: dict[str, tuple[str, str]] = {
     "leg.closed_failed": ("leg '{leg}': {error}", "check the end target and the process against the start of this leg"),
     "leg.overflow": ("leg '{leg}': the path P·Vⁿ = const with these values gives numbers beyond floating-point range",
                      "use a physical exponent (for a fixed volume use process: isochoric)"),
+    "cylinder.no_gas": ("the cylinder of '{leg}' passes no gas: at the pressure ratio {r:.4g} the clearance gas "
+                        "re-expands over the whole stroke (volumetric efficiency {eta:.4g})",
+                        "give a smaller clearance, or a lower pressure ratio for this stage (more stages)"),
+    "cylinder.no_balance": ("the cylinders in series from '{leg}' pass no common mass flow between their end "
+                            "pressures ({error})",
+                            "check the cylinder sizes against the end pressure: each cylinder must be able to pass "
+                            "what the one before it delivers"),
+    "cylinder.no_common_flow": ("no pressure up to {P:Pa~6} lets the cylinders pass one flow", ""),
+    "cylinder.series_ratio": ("the last stage '{leg}' of a series of reciprocating stages gives a pressure ratio, but "
+                              "its suction pressure is settled by the cylinders",
+                              "give the end pressure of the series, for example end: {{pressure: 25 bara}}"),
+    "staging.no_trial": ("no staging trial could be computed", ""),
+    "staging.rest_ratio": ("the given ratios or interstage pressures reach {P:Pa~6}, which leaves the last stage "
+                           "no compression up to the end pressure {P_out:Pa~6}",
+                           "give ratios or interstage pressures that stay below the end pressure"),
     "drop.too_large": ("the pressure drop {entered} is larger than the inlet pressure ({P:Pa~6})",
                        "give a drop smaller than the inlet pressure"),
     "intercooler.above_discharge": ("the intercooler outlet {entered} is above the discharge temperature of stage {k} "

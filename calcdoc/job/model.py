@@ -16,7 +16,7 @@ from ..errors import Problem
 from ..units import DisplayUnits
 from .quantities import Quantity
 
-__all__ = ["HUMIDITY_KEYS", "Drop", "FollowSpec", "GasSpec", "Input", "Job", "LegOptions", "LegSpec", "LimitSpec", "Site",
+__all__ = ["HUMIDITY_KEYS", "Cylinder", "Drop", "FollowSpec", "GasSpec", "Input", "Job", "LegOptions", "LegSpec", "LimitSpec", "Site",
            "SolveSpec", "Staging", "StartSpec", "SweepSpec", "TitleBlock", "VesselLegSpec", "VesselSpec", "WallSpec"]
 
 
@@ -167,22 +167,51 @@ class Staging:
     T_cool: Input                      # intercooler outlet temperature
     drop: Drop
     path: str = ""                     # key path of the staging block
+    ratios: tuple[Input, ...] = ()     # given ratios of the first stages (the last stage takes the rest), or
+    pressures: tuple[Input, ...] = ()  # given discharge pressures of the first stages (the last takes the rest)
 
     @property
     def most_stages(self) -> int:
         """The most stages this block can give."""
         return self.stages if self.stages is not None else self.max_stages
 
+    @property
+    def fixed(self) -> int | None:
+        """The number of stages when the block fixes it (stages, ratios or interstage pressures), else None."""
+        if self.ratios or self.pressures:
+            return len(self.ratios or self.pressures) + 1
+        return self.stages
+
+
+@dataclass(frozen=True)
+class Cylinder:
+    """The cylinder of a reciprocating compressor stage, as the job file gives it (SI: lengths [m],
+    speed [rev/s], clearance and loss as fractions of the swept volume)."""
+
+    bore: Input
+    stroke: Input
+    rod: Input | None                  # piston-rod diameter; None: a single-acting cylinder with no rod
+    speed: Input                       # [rev/s]
+    clearance: Input
+    double: bool                       # double acting (both ends compress) or single (head end only)
+    n_e: Input | None = None           # re-expansion exponent; None: the gas's isentropic exponent at suction
+    loss: Input | None = None          # valve and ring leakage allowance; None: 0
+    count: int = 1                     # identical cylinders in parallel
+    path: str = ""                     # key path of the cylinder block
+
 
 @dataclass(frozen=True)
 class LegOptions:
-    """The steady-flow options of a leg: efficiencies, pressure drop, staging."""
+    """The steady-flow options of a leg: efficiencies, pressure drop, staging, the machine and its cylinder."""
 
     eta_p: Input | None = None
     eta_s: Input | None = None
     eta_m: Input | None = None
     drop: Drop = Drop()
     staging: Staging | None = None
+    machine: str = ""                  # "" (no geometry given) or "reciprocating"
+    cylinder: Cylinder | None = None
+    eta_stages: tuple[Input, ...] = () # per-stage efficiencies of a staged leg (of the kind eta_p or eta_s names)
 
 
 @dataclass(frozen=True)

@@ -12,6 +12,7 @@ from dataclasses import MISSING, fields
 from typing import Any
 
 from . import jobfile, solve, sweep, vesselfile
+from .cylinder import CYLINDER_KEYS, MACHINE_KINDS
 from .displayunits import UNIT_KEYS
 from .flowopts import INTERCOOLER_KEYS, STAGING_KEYS
 from .limits import LIMIT_KEYS
@@ -81,9 +82,14 @@ def job_schema() -> dict[str, Any]:
         "end": _obj(tuple(dict.fromkeys(jobfile.CLOSED_TARGETS + jobfile.FLOW_TARGETS)), target_props,
                     desc="the end target of the leg"),
     }
+    def one_or_list(desc: str) -> dict[str, Any]:
+        return {"description": desc + "; on a staged leg, a list of one per stage",
+                "oneOf": [{"type": ["string", "number"]}, {"type": "array", "minItems": 1,
+                                                           "items": {"type": ["string", "number"]}}]}
+
     efficiency = {"type": "object", "additionalProperties": False, "minProperties": 1, "maxProperties": 1,
-                  "properties": {"polytropic": _qty("polytropic efficiency, 0 to 1 or a percentage"),
-                                 "isentropic": _qty("isentropic efficiency, 0 to 1 or a percentage")}}
+                  "properties": {"polytropic": one_or_list("polytropic efficiency, 0 to 1 or a percentage"),
+                                 "isentropic": one_or_list("isentropic efficiency, 0 to 1 or a percentage")}}
     leg_props.update({
         "efficiency": efficiency,
         "mechanical_efficiency": _qty("mechanical efficiency of the machine, 0 to 1 or a percentage"),
@@ -91,17 +97,36 @@ def job_schema() -> dict[str, Any]:
         "staging": _obj(STAGING_KEYS, {
             "stages": {"type": "integer", "minimum": 1, "maximum": 12},
             "max_discharge_temperature": _qty("discharge-temperature limit for the fewest-stages search"),
+            "ratios": {"type": "array", "minItems": 1, "items": {"type": "number", "exclusiveMinimum": 1},
+                       "description": "pressure ratios of the first stages; the last stage takes the rest"},
+            "interstage_pressures": {"type": "array", "minItems": 1, "items": _qty("discharge pressure of a stage"),
+                                     "description": "discharge pressures of the first stages; the last takes the rest"},
             "max_stages": {"type": "integer", "minimum": 1, "maximum": 12},
             "intercooler": _obj(INTERCOOLER_KEYS, {"temperature": _qty("intercooler outlet temperature"),
                                                    "pressure_drop": _qty("intercooler pressure drop")},
                                 ("temperature",))}, ("intercooler",), "a compressor split into stages"),
+        "machine": {"enum": list(MACHINE_KINDS), "description": "the machine's own geometry (compressor legs)"},
+        "cylinder": _obj(CYLINDER_KEYS, {
+            "bore": _qty("cylinder bore, e.g. 200 mm"), "stroke": _qty("stroke, e.g. 120 mm"),
+            "rod": _qty("piston-rod diameter (required for double acting)"), "speed": _qty("speed, e.g. 500 rpm"),
+            "clearance": _qty("clearance volume, percent of the swept volume"),
+            "action": {"enum": ["double", "single"]},
+            "re_expansion_exponent": {"type": "number", "description": "default: the gas's isentropic exponent at suction"},
+            "volumetric_loss": _qty("valve and ring leakage allowance, percent (default 0)"),
+            "cylinders": {"type": "integer", "minimum": 1, "maximum": 12}},
+            ("bore", "stroke", "speed", "clearance", "action"), "the cylinder of a reciprocating stage"),
     })
     for key in jobfile._FLOW_LEG_KEYS:
         leg_props.setdefault(key, {"description": f"{key.replace('_', ' ')} (steady-flow legs)"})
 
     def legs_of(keys: Iterable[str], processes: Iterable[str]) -> dict[str, Any]:
         props = dict(leg_props, process={"enum": list(processes)})
-        return {"type": "array", "minItems": 1, "items": _obj(keys, props, ("name", "process", "end"))}
+        if "machine" not in keys:
+            return {"type": "array", "minItems": 1, "items": _obj(keys, props, ("name", "process", "end"))}
+        # a reciprocating stage followed by another leaves its end pressure to the cylinders
+        item = {**_obj(keys, props, ("name", "process")),
+                "if": {"not": {"required": ["machine"]}}, "then": {"required": ["end"]}}
+        return {"type": "array", "minItems": 1, "items": item}
 
     start_props = _model_props(StartSpec)
     props = {

@@ -1,4 +1,4 @@
-"""Commented starter job files (``calcdoc new --system closed|flow``).
+"""Commented starter job files (``calcdoc new --system closed|flow|vessel|reciprocating``).
 
 Each starter passes ``calcdoc check`` as written (a test makes sure); the values are placeholders of
 an invented scenario, to be replaced by the engineer's own.
@@ -151,9 +151,68 @@ assumptions:
   - The gas in the vessel is well mixed.
 """
 
-STARTERS = {"closed": _CLOSED, "flow": _FLOW, "vessel": _VESSEL}
+_RECIP = _HEAD.format(title="Two-stage reciprocating air compressor, cylinders and rod loads", fluid="Air") + """
+system: flow                     # steady flow through machines and exchangers
+
+start:                           # suction state
+  pressure: 1 bara
+  temperature: 25 degC
+  mass_flow: 0.12 kg/s           # the duty; leave the flow out and the first stage's cylinders set it
+
+legs:                            # each leg starts where the previous one ended
+  - name: Stage 1
+    process: compressor
+    machine: reciprocating       # the machine's own geometry: the cylinders decide the flow and the interstage pressure
+    cylinder:
+      bore: 250 mm
+      stroke: 150 mm
+      rod: 45 mm                 # piston-rod diameter
+      speed: 600 rpm
+      clearance: 12 %            # of the swept volume
+      action: double             # double (both ends compress) or single (head end only)
+      # re_expansion_exponent: 1.3   # default: the gas's isentropic exponent at suction
+      # volumetric_loss: 4 %         # valve and ring leakage allowance; default 0
+      cylinders: 1               # identical cylinders in parallel
+    efficiency: {isentropic: 0.80}
+    # no end: the pressure between two reciprocating stages is where both cylinders pass the same mass flow
+  - name: Intercooler
+    process: cooler
+    pressure_drop: 2 %
+    end: {temperature: 35 degC}
+  - name: Stage 2
+    process: compressor
+    machine: reciprocating
+    cylinder: {bore: 150 mm, stroke: 150 mm, rod: 45 mm, speed: 600 rpm, clearance: 14 %, action: double}
+    efficiency: {isentropic: 0.80}
+    end: {pressure: 10 bara}     # the end pressure of the series
+
+limits:                          # design limits; any failing check makes `calcdoc run` exit 1
+  - name: Cylinder capacity
+    quantity: capacity           # cylinder flow / required flow
+    at: [Stage 1]
+    min: 1.0
+    basis: Duty of the unit (replace with your source)
+  - name: Gas rod load, compression
+    quantity: rod_load_compression
+    max: 40 kN
+    basis: Frame rating (replace with the manufacturer's figure)
+  - name: Gas rod load, tension
+    quantity: rod_load_tension
+    max: 40 kN
+    basis: Frame rating (replace with the manufacturer's figure)
+  - name: Discharge temperature
+    quantity: discharge_temperature
+    at: [Stage 1, Stage 2]
+    max: 200 degC
+    basis: Lubricant and valve limits (replace with your source)
+
+assumptions:
+  - Kinetic and potential energy changes of the gas are negligible.
+"""
+
+STARTERS = {"closed": _CLOSED, "flow": _FLOW, "vessel": _VESSEL, "reciprocating": _RECIP}
 
 
 def starter(system: str) -> str:
-    """The commented starter job file of a system."""
+    """The commented starter job file of a system (closed, flow or reciprocating)."""
     return STARTERS[system]

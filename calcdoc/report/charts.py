@@ -271,3 +271,32 @@ def time_chart(results, system: str) -> str:
     out = _svg(fig)
     plt.close(fig)
     return out
+
+
+#: The processes of the ideal indicator diagram as the chart labels them (corner numbers of the cycle).
+_PROCESS_LABELS = {"compression": "1→2 compression", "discharge": "2→3 discharge",
+                   "re_expansion": "3→4 re-expansion", "suction": "4→1 suction"}
+
+
+def indicator_chart(cyl: dict, system: str) -> str:
+    """The ideal indicator diagram of one cylinder's head end (pressure against cylinder volume for one
+    revolution), each process drawn and labelled, from the points in the results file."""
+    plt = _pyplot()
+    fig, ax = plt.subplots(figsize=(6.3, 3.3))
+    loop = cyl["indicator_head_end"]
+    for k, (proc, label) in enumerate(_PROCESS_LABELS.items()):
+        V = _conv(loop[proc]["V"]["value"], "m**3|cyl", system)
+        P = _conv(loop[proc]["P"]["value"], "Pa", system)
+        ax.plot(V, P, color=PALETTE[k], label=label)
+        mid = len(V) // 2
+        at = (V[mid], P[mid]) if len(V) > 2 else (0.5 * (V[0] + V[-1]), P[0])
+        ax.annotate(label, at, textcoords="offset points",
+                    xytext=(4, 6 if proc != "suction" else -12), fontsize=7.5, color=PALETTE[k])
+    ax.set_xlabel(_label("cylinder volume V (head end)", "m**3|cyl", system))
+    ax.set_ylabel(_label("pressure P (absolute)", "Pa", system))
+    ax.set_xlim(left=0)
+    ax.set_ylim(bottom=0)
+    ax.legend(fontsize=7.5, loc="upper right")
+    out = _svg(fig)
+    plt.close(fig)
+    return out

@@ -17,7 +17,7 @@ from .. import units
 from ..engine import software_versions
 from ..job.quantities import PERCENT_MARGIN, QUANTITIES, percent_margin
 from . import changes, format as fmt, methods, words
-from .charts import diagrams, sweep_chart, time_chart
+from .charts import diagrams, indicator_chart, sweep_chart, time_chart
 from .conclusions import conclusions
 
 CAUTIONS = (
@@ -152,6 +152,9 @@ def context(results) -> dict:
         charts["wall"] = "yes" if any("T_wall" in (leg.series or {}) for leg in results.legs) else ""
     if results.extra.get("sweep"):
         charts["sweep"] = sweep_chart(results.extra["sweep"], system)
+    if results.extra.get("cylinders"):
+        charts["indicator"] = [(c["leg"], indicator_chart(c, system))    # type: ignore[assignment]
+                               for c in results.extra["cylinders"]]
     return {
         "r": results,
         "job": job,

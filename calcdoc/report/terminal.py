@@ -97,7 +97,9 @@ def _flow_leg_line(leg, show) -> str:
     parts = [f"  leg {leg.i}→{leg.i + 1} {leg.name} ({leg.process}): P2 = {show(leg.end.P, 'Pa')}, "
              f"T2 = {show(leg.end.T, 'K')}"]
     for key, label in (("head", "Hp"), ("eta_p", "ηp"), ("eta_s", "ηs"), ("eta_p_schultz", "ηp Schultz"),
-                       ("power", "P gas"), ("shaft_power", "P shaft"), ("duty", "duty"), ("dT", "ΔT")):
+                       ("power", "P gas"), ("shaft_power", "P shaft"), ("duty", "duty"), ("dT", "ΔT"),
+                       ("volumetric_efficiency", "ηv"), ("cylinder_flow", "ṁ cyl"), ("capacity", "capacity"),
+                       ("rod_load_compression", "rod load C"), ("rod_load_tension", "rod load T")):
         if key in qd and not (key in ("power", "duty") and qd[key].value == 0.0):
             c = qd[key]
             unit = {"duty": "W|heat", "head": "J/kg|head"}.get(key, c.unit)

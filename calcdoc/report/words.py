@@ -65,6 +65,11 @@ for _what, _words in (("saturation", "saturation temperature"), ("dew", "dew tem
                                         + " ({dew:K~4} at that pressure): liquid can form.")
     WARNINGS[f"phase.{_what}.near"] = ("{where}: the gas comes within {gap:dK~2} of its " + _words
                                        + " ({dew:K~4} at {P:Pa}); condensation is possible.")
+WARNINGS["cylinder.short"] = ("Leg '{leg}': the cylinders pass {mc:kg/s~5}, {pct:.1f} % of the required flow "
+                              "{m:kg/s~5}: the machine is too small for the duty.")
+WARNINGS["cylinder.no_reversal"] = ("Leg '{leg}': the gas rod load does not reverse during the revolution "
+                                    "(compression {Fc:N~4}, tension {Ft:N~4}); without reversal the crosshead pin "
+                                    "bearing is not relieved and lubricated. Check with the frame manufacturer.")
 #: fact code (a plain statement about a leg) → sentence
 FACTS: dict[str, str] = {
     "leg.two_phase_outlet": ("The outlet is two-phase: vapour fraction (mass basis) x = {x:.4f} at {T:K~4}, "
@@ -73,6 +78,24 @@ FACTS: dict[str, str] = {
                               "{P:Pa}. The isentropic efficiency applies to enthalpy differences as usual; no "
                               "single-phase path of constant polytropic efficiency reaches a wet end, so no "
                               "polytropic head or exponent is given."),
+    "cylinder.sets_flow": "The cylinders set the flow of the job: ṁ = {m:kg/s~5}, which runs through the rest of "
+                          "the train.",
+    "cylinder.rod_site": "Gas rod loads at the dead points from the suction and discharge pressures on the piston "
+                         "faces, with the site atmosphere ({P:Pa~5}) acting on the rod outside the packing; inertia, "
+                         "valve losses and pulsation are not included.",
+    "cylinder.rod_standard": "Gas rod loads at the dead points from the suction and discharge pressures on the "
+                             "piston faces, with the standard atmosphere at sea level ({P:Pa~5}; the job gives no "
+                             "site) acting on the rod outside the packing; inertia, valve losses and pulsation are "
+                             "not included.",
+    "cylinder.reverses": "The gas rod load reverses every revolution: compression {Fc:N~4}, tension {Ft:N~4}.",
+    "cylinder.no_reversal": "The gas rod load does not reverse: compression {Fc:N~4}, tension {Ft:N~4} (a negative "
+                            "value: the rod never sees that direction of load).",
+    "cylinder.n_e_default": "No re-expansion exponent is given: the gas's isentropic exponent at suction is used, "
+                            "n_e = {n:.4f}.",
+    "cylinder.loss_default": "No volumetric loss allowance is given: L = 0 (valve and ring leakage are commonly "
+                             "allowed for with 3–5 %; common practice).",
+    "cylinder.settled": "Interstage pressure settled where the cylinders in series pass the same mass flow: "
+                        "{P:Pa~6} (relative tolerance {rtol:.0e}; {evaluations} cylinder-flow evaluations).",
     "closed.n_derived": "n = {n:.6g} derived from the measured end state.",
     "closed.n1_form": "Boundary work by the form that stays accurate for n near 1.",
     "closed.isothermal_real": "Real gas: heat from T·ΔS along the isotherm, work from the first law (P·V is not "
@@ -147,6 +170,19 @@ NOTES: dict[str, str] = {
     "start_volume_flow": "actual volume flow at the start state",
     "standard_conditions": "reference conditions stated in the job: {P}, {T}",
     "sign_reversed": "{title}: {symbol} with its sign reversed",
+    "set_by_cylinder": "set by the cylinders of '{leg}' (no flow is given in the job)",
+    "inlet_volume_flow": "inlet volume flow at suction conditions",
+    "double_acting": "double acting: head end and crank end compress",
+    "single_acting": "single acting: head end only",
+    "n_e_default": "isentropic exponent of the gas at suction (no re-expansion exponent given)",
+    "rod_compression": "rod in compression at the end of the head-end stroke",
+    "rod_tension": "rod in tension at the end of the crank-end stroke",
+    "rod_tension_single": "single acting: the crank end holds suction pressure throughout",
+    "indicated_ratio": "indicated power of the ideal cycle over the gas power from the efficiency",
+    "settled_pressure": "interstage pressure where the cylinders in series pass the same mass flow",
+    "given_ratio": "given stage ratio",
+    "given_pressure": "given interstage pressure",
+    "rest_ratio": "the last stage takes the rest of the ratio",
     "total.comp_power": "total compressor gas power",
     "total.exp_power": "total expander gas power output",
     "total.cooling": "total cooling duty (heat removed from the gas)",
@@ -159,12 +195,19 @@ NOTES: dict[str, str] = {
     "vessel.isothermal": "isothermal vessel: Q̇ holds the gas temperature constant",
     "vessel.wall": "heat from the wall: Q̇ = h·A·(T_w − T), m_w·c_w·dT_w/dt = −Q̇",
 }
+FACTS["staging.ratios"] = ("Staged into {stages} stages at the stage ratios the job gives; the last stage takes the "
+                           "rest of the ratio up to the end pressure.")
+FACTS["staging.pressures"] = ("Staged into {stages} stages at the interstage pressures the job gives; the last stage "
+                              "takes the rest of the ratio up to the end pressure.")
 FACTS["staging.given"] = ("Staged into {stages} stages with equal pressure ratios (allowing for the intercooler "
                           "pressure drops), as the job asks.")
 
 #: Equations stated in words (an implicit condition rather than a formula): code → text with {placeholders}.
 EQUATIONS: dict[str, str] = {
     "~stage_ratio_absolute": "r such that r^{N}·{Pin} − {dP}·(r^({N} − 1) + … + r) = {Pout}",
+    "~cycle_area": "area of the ideal P–V loop with {Ps}, {Pd}, {Vs}, {c}, {nc}, {ne} (compression, discharge, "
+                   "re-expansion, suction)",
+    "~settled": "P such that every cylinder of the series passes the same mass flow",
     "~v_on_path": "v such that T(P_1·(v_1/v)^n, v) = T_2",
     "~T_on_path_compressor": "T at {P2} on the path v·dP = {eta}·dh",
     "~T_on_path_expander": "T at {P2} on the path dh = {eta}·v·dP",
@@ -173,7 +216,8 @@ EQUATIONS: dict[str, str] = {
 }
 
 #: The rules by which a compressor leg was staged (results file ``staging[].rule``).
-STAGING_RULES = {"given": "given number of stages", "fewest": "fewest stages under the discharge-temperature limit"}
+STAGING_RULES = {"given": "given number of stages", "ratios": "given stage ratios (the last stage takes the rest)",
+                 "pressures": "given interstage pressures (the last stage takes the rest)", "fewest": "fewest stages under the discharge-temperature limit"}
 
 
 def equation(text: str) -> str:
@@ -212,8 +256,10 @@ def _unmarked(v: dict, system: str) -> str:
 
 @_spoken("staging.fewest")
 def _fewest(v: dict, system: str) -> str:
-    steps = "; ".join(f"{n} stage{'s' if n > 1 else ''}: highest discharge {say_si(T, 'K', system, 4)} "
-                      f"({'within' if T <= v['limit'] else 'above'} the limit)" for n, T in v["trials"])
+    steps = "; ".join(f"{n} stage{'s' if n > 1 else ''}: " + (
+        "rejected, a discharge state lies outside the range of the equation of state" if T is None else
+        f"highest discharge {say_si(T, 'K', system, 4)} ({'within' if T <= v['limit'] else 'above'} the limit)")
+        for n, T in v["trials"])
     return (f"Fewest stages that keep every discharge temperature at or below {v['entered']}: {v['stages']}. "
             f"Trials with equal stage ratios: {steps}.")
 

@@ -76,7 +76,7 @@ def test_schema_keys_follow_the_validator():
         assert msg.endswith("valid keys here: " + ", ".join(keys))
 
 
-@pytest.mark.parametrize("system", ["closed", "flow", "vessel"])
+@pytest.mark.parametrize("system", ["closed", "flow", "vessel", "reciprocating"])
 def test_new_writes_a_starter_that_passes_check(tmp_path, capsys, system):
     path = tmp_path / f"{system}.yaml"
     assert cli.main(["new", "--system", system, str(path)]) == 0
@@ -128,3 +128,10 @@ def test_library_render_gives_the_report_html():
 
     html = calcdoc.render(calcdoc.run(loads(ideal_job(), "job.yaml")), pdf=False)
     assert "T-LIM-001" in html and "<h2>7 Design checks</h2>" in html
+
+
+def test_reciprocating_starter_runs_with_its_cylinder_checks():
+    res = run(loads(STARTERS["reciprocating"], "starter.yaml"))
+    names = {c.quantity for c in res.checks}
+    assert {"capacity", "rod_load_compression", "rod_load_tension"} <= names
+    assert res.extra["interstage"] and res.extra["cylinders"]

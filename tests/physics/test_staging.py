@@ -66,7 +66,8 @@ def test_staging_needs_intercooler_and_one_rule(run_flow_text):
     with pytest.raises(JobError) as exc:
         run_flow_text(flow_job(AIR_IDEAL, START, _staged("{stages: 2, max_discharge_temperature: 150 degC}")))
     msg = str(exc.value)
-    assert "exactly one of stages and max_discharge_temperature" in msg and "intercooler" in msg
+    assert "exactly one of stages, max_discharge_temperature, ratios, interstage_pressures" in msg
+    assert "found stages, max_discharge_temperature" in msg and "intercooler" in msg
 
 
 def test_demo_booster_job_runs_and_stays_under_its_limit():
