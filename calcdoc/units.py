@@ -9,14 +9,19 @@ per application").
 """
 from __future__ import annotations
 
+import os
 import re
+import shutil
+import tempfile
 from dataclasses import dataclass
 from functools import lru_cache
+from pathlib import Path
 from typing import Any
 
 __all__ = [
     "DIMENSIONS",
     "P_STD",
+    "cache_dir",
     "convert",
     "say",
     "pretty_unit",
@@ -128,13 +133,59 @@ class UnitParseError(ValueError):
         super().__init__(f"{found}; {valid}")
 
 
+def cache_dir(*parts: str) -> Path | None:
+    """calcdoc's folder in the user's cache directory (``$CALCDOC_CACHE_DIR``, else
+    ``$XDG_CACHE_HOME/calcdoc``, else ``~/.cache/calcdoc``), with ``parts`` below it, created when
+    missing; None when it cannot be made or ``CALCDOC_CACHE_DIR`` is set empty (caching off).
+
+    Everything in it is derived data, keyed by the versions that made it: it is safe to delete at any
+    time, and calcdoc works (more slowly) without it."""
+    root = os.environ.get("CALCDOC_CACHE_DIR")
+    if root is None:
+        base = os.environ.get("XDG_CACHE_HOME") or os.path.join(os.path.expanduser("~"), ".cache")
+        root = os.path.join(base, "calcdoc")
+    if not root:
+        return None
+    path = Path(root, *parts)
+    try:
+        path.mkdir(parents=True, exist_ok=True)
+    except OSError:
+        return None
+    return path
+
+
+def _pint_cache(pint) -> str | None:
+    """pint's cache of its parsed unit definitions (building the registry: ~0.2 s without, ~0.02 s
+    with). pint writes its cache files in place, so a fresh cache is built in a private folder and
+    renamed into place whole: a process never reads another's half-written file."""
+    root = cache_dir()
+    if root is None:
+        return None
+    final = root / f"pint-{pint.__version__}"
+    if final.is_dir():
+        return str(final)
+    try:
+        tmp = tempfile.mkdtemp(prefix=".pint-", dir=root)
+    except OSError:
+        return None
+    try:
+        pint.UnitRegistry(cache_folder=tmp)
+        os.rename(tmp, final)
+    except Exception:        # another process was first (rename refused), or pint could not write
+        shutil.rmtree(tmp, ignore_errors=True)
+    return str(final) if final.is_dir() else None
+
+
 @lru_cache(maxsize=1)
 def registry() -> Any:
-    """The one pint registry (created on first use; ~0.3 s)."""
+    """The one pint registry (created on first use; ~0.3 s, ~0.05 s from the cache)."""
     import pint
 
     lib: Any = pint             # pint's own annotations are incomplete
-    ureg = lib.UnitRegistry()
+    try:
+        ureg = lib.UnitRegistry(cache_folder=_pint_cache(lib))
+    except Exception:        # an unreadable cache (pint raises several types): build from the definitions
+        ureg = lib.UnitRegistry()
     ureg.define("kmol = 1000 * mol")
     ureg.define("lbmol = 453.59237 * mol")     # pound-mole: the avoirdupois pound is 453.592 37 g (exact)
     lib.set_application_registry(ureg)

@@ -13,6 +13,7 @@ from ..job.messages import problem
 from ..job.model import Job
 from ..physics.calc import Calc, Term
 from ..physics.closed import LegResult
+from ..physics.dome import saturation_dome
 from ..physics.fluids import closest_fluids
 from ..physics.gas import R_U, Gas, IdealGas, RealGas
 from .diagnose import fluid_problems
@@ -121,7 +122,7 @@ def saturation_near(gas: Gas, legs: Sequence[LegResult]) -> tuple[tuple[float, f
     if not isinstance(gas, RealGas) or not gas.pure:
         return None
     if any(st.T < 1.3 * gas.Tc for leg in legs for st in leg.path):
-        curve = gas.saturation_curve()
+        curve = saturation_dome(gas)         # from the user's cache after the first job of the fluid
         return tuple(curve) if curve else None
     return None
 
