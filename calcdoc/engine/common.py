@@ -21,14 +21,21 @@ from .diagnose import fluid_problems
 __all__ = ["job_basis", "make_gas", "saturation_near", "shared_real_gas", "site_calcs", "software_versions"]
 
 def software_versions() -> dict[str, str]:
-    """The versions of calcdoc and the libraries it computes and renders with."""
+    """The versions of calcdoc and the libraries it computes and renders with (a fresh dict)."""
+    return dict(_versions())
+
+
+@lru_cache(maxsize=1)
+def _versions() -> tuple[tuple[str, str], ...]:
+    # reading the installed packages' metadata costs ~40 ms: once per process (a sweep asks per point;
+    # the modules loaded cannot change version while the process runs)
     out = {"calcdoc": __version__}
     for dist in ("CoolProp", "pint", "PyYAML", "Jinja2", "matplotlib", "weasyprint", "numpy"):
         try:
             out[dist] = metadata.version(dist)
         except metadata.PackageNotFoundError:
             out[dist] = "not installed"
-    return out
+    return tuple(out.items())
 
 
 def make_gas(job: Job) -> tuple[Gas, list[Calc]]:
