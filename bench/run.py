@@ -194,7 +194,10 @@ def main() -> int:
         os.environ["CALCDOC_CACHE_DIR"] = str(tmp / "cache")
         print("\n== issue #17: speed where the user waits", flush=True)
         for bench in ISSUE_17:
-            bench(tmp)
+            try:
+                bench(tmp)
+            except Exception as exc:       # one broken figure must not hide the others
+                record(f"{bench.__name__}: did not complete", math.nan, "-", False, f"({type(exc).__name__}: {exc})"[:300])
         if not quick:
             print("\n== earlier figures (#9)", flush=True)
             bench_startup()

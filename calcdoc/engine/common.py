@@ -4,7 +4,6 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 from functools import lru_cache
-from importlib import metadata
 from typing import Any
 
 from .. import __version__
@@ -28,7 +27,10 @@ def software_versions() -> dict[str, str]:
 @lru_cache(maxsize=1)
 def _versions() -> tuple[tuple[str, str], ...]:
     # reading the installed packages' metadata costs ~40 ms: once per process (a sweep asks per point;
-    # the modules loaded cannot change version while the process runs)
+    # the modules loaded cannot change version while the process runs); imported here, as it pulls in
+    # the email package (~15 ms) that checking a job file does not need
+    from importlib import metadata
+
     out = {"calcdoc": __version__}
     for dist in ("CoolProp", "pint", "PyYAML", "Jinja2", "matplotlib", "weasyprint", "numpy"):
         try:

@@ -25,3 +25,4 @@ def test_import_starts_no_subprocess_and_renders():
     # plain `import weasyprint` starts 54 here (ldconfig, gcc, ld per library name tried; LIBRARY-NOTES)
     assert started == "0"
     assert magic == "%PDF-"
+
