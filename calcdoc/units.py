@@ -191,7 +191,7 @@ def cache_dir(*parts: str) -> Path | None:
     return path
 
 
-def _pint_cache(pint) -> str | None:
+def _pint_cache(pint: Any) -> str | None:
     """pint's cache of its parsed unit definitions (building the registry: ~0.2 s without, ~0.02 s
     with). pint writes its cache files in place, so a fresh cache is built in a private folder and
     renamed into place whole: a process never reads another's half-written file."""

@@ -15,6 +15,7 @@ import math
 import os
 import re
 import tempfile
+from pathlib import Path
 
 from ..units import cache_dir
 from .gas import RealGas
@@ -57,11 +58,11 @@ def saturation_dome(gas: RealGas, n: int = 60) -> list[tuple[float, float, float
     return curve
 
 
-def _read(path) -> list[tuple[float, float, float, float]] | None:
+def _read(path: Path) -> list[tuple[float, float, float, float]] | None:
     try:
         with open(path, encoding="utf-8") as fh:
             data = json.load(fh)
-        curve = [tuple(float(x) for x in p) for p in data["points"]]
+        curve = [(float(a), float(b), float(c), float(d)) for a, b, c, d in data["points"]]
     except (OSError, ValueError, KeyError, TypeError):
         return None
     if not curve or any(len(p) != 4 or not all(math.isfinite(x) for x in p) for p in curve):
@@ -69,7 +70,7 @@ def _read(path) -> list[tuple[float, float, float, float]] | None:
     return curve
 
 
-def _write(path, curve) -> None:
+def _write(path: Path, curve: list[tuple[float, float, float, float]]) -> None:
     text = json.dumps({"points": [list(p) for p in curve]}, separators=(",", ":"))
     try:
         fd, tmp = tempfile.mkstemp(prefix=".dome-", suffix=".tmp", dir=path.parent)

@@ -26,3 +26,24 @@ def test_import_starts_no_subprocess_and_renders():
     assert started == "0"
     assert magic == "%PDF-"
 
+
+
+def test_shared_font_configuration_gives_the_same_pdf_bytes():
+    """The font configuration is shared by the renders of one process (calcdoc watch, batch workers):
+    a render with a fresh one and the renders after it are byte-identical."""
+    from calcdoc import engine
+    from calcdoc.job import loads
+    from calcdoc.report import render
+    from calcdoc.report.jsonfile import dumps
+
+    job = loads("calcdoc: 1\ncalc: {number: F-1, title: Fonts, revision: A, date: 2026-11-28}\n"
+                "gas: {model: ideal, k: 1.4, molar_mass: 28.97 g/mol}\n"
+                "start: {pressure: 1 bar, temperature: 300 K, volume: 1 L}\n"
+                "legs:\n  - {name: Squeeze, process: isentropic, end: {volume_ratio: 0.5}}\n", "f.yaml")
+    res = engine.run(job)
+    js = dumps(res)
+    render._font_config.cache_clear()
+    fresh = render.render_pdf(res, js)
+    again = render.render_pdf(res, js)
+    assert render._font_config.cache_info().hits >= 1        # the second render reused the configuration
+    assert again == fresh
