@@ -138,6 +138,9 @@ _FAST: dict[tuple[str, str], float] = {
     ("mol/s", "mol/s"): 1.0, ("kmol/hour", "mol/s"): 0.2777777777777778, ("kmol/s", "mol/s"): 1000.0,
     ("mol/hour", "mol/s"): 0.0002777777777777778,
     ("kg/m**3", "kg/m**3"): 1.0,
+    ("s", "s"): 1.0, ("min", "s"): 60.0, ("hour", "s"): 3600.0, ("ms", "s"): 0.001,
+    ("m**2", "m**2"): 1.0, ("cm**2", "m**2"): 0.0001, ("mm**2", "m**2"): 1e-06, ("ft**2", "m**2"): 0.09290303999999999, ("in**2", "m**2"): 0.00064516,
+    ("W/(m**2*K)", "W/(m**2*K)"): 1.0,
 }
 #: Temperature differences: pint's factor to kelvin.
 _FAST_DT: dict[str, float] = {"K": 1.0, "degR": 0.5555555555555556}
