@@ -18,6 +18,19 @@ settings.register_profile("long", max_examples=5000, deadline=None, print_blob=T
                           suppress_health_check=[HealthCheck.too_slow])
 settings.load_profile("long" if os.environ.get("CALCDOC_FUZZ") == "long" else "ci")
 
+
+@pytest.fixture(scope="session", autouse=True)
+def _private_cache_dir(tmp_path_factory):
+    """The tests keep calcdoc's cache (pint's definitions, saturation domes) in a folder of their own,
+    inherited by the commands they start, never the user's."""
+    old = os.environ.get("CALCDOC_CACHE_DIR")
+    os.environ["CALCDOC_CACHE_DIR"] = str(tmp_path_factory.mktemp("calcdoc-cache"))
+    yield
+    if old is None:
+        os.environ.pop("CALCDOC_CACHE_DIR", None)
+    else:
+        os.environ["CALCDOC_CACHE_DIR"] = old
+
 TITLE = {"number": "TST-000-C-001", "title": "Test job", "project": "Tests", "revision": "A",
          "date": "2026-11-28"}
 

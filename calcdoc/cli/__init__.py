@@ -18,6 +18,7 @@ from . import signing, tools
 from .batch import expand, run_batch
 from .runjob import output_groups, print_job_error, print_job_warnings, run_one
 from .verify import RerunFailed, verify
+from .watch import watch
 
 __all__ = ["EXIT_BAD_INPUT", "EXIT_CHECK_FAILED", "EXIT_INTERNAL", "EXIT_OK", "build_parser", "entry", "main"]
 
@@ -46,6 +47,19 @@ def build_parser() -> argparse.ArgumentParser:
                    help="on an internal error, write the traceback to calcdoc-debug.log in the output folder")
     r.add_argument("--changes-since", metavar="OLD.yaml",
                    help="add a section 'Changes since revision X' comparing with an older revision of the job")
+    w = sub.add_parser("watch", help="compute a job, then again each time its file is saved (Ctrl-C to stop)",
+                       description="Compute JOB.yaml and write its results JSON and PDF as 'run' does; then keep the "
+                                   "libraries loaded and rebuild each time the file changes, printing the check "
+                                   "summary (or the problems of the job file) and keeping the last good report. "
+                                   "Ctrl-C stops (exit code 130).")
+    w.add_argument("job", metavar="JOB.yaml")
+    w.add_argument("--out", "-o", default="out", metavar="DIR", help="output folder (default: ./out)")
+    w.add_argument("--no-pdf", action="store_true", help="write the results JSON only (no PDF)")
+    w.add_argument("--quiet", "-q", action="store_true", help="print nothing but errors")
+    w.add_argument("--interval", type=float, default=0.5, metavar="S",
+                   help="how often to look at the file, in seconds (default: 0.5)")
+    w.add_argument("--debug", action="store_true",
+                   help="on an internal error, write the traceback to calcdoc-debug.log in the output folder")
     c = sub.add_parser("check", help="validate job file(s) without computing or writing anything",
                        description="Read and validate job files; report every problem found (exit 2) or OK (exit 0).")
     c.add_argument("jobs", nargs="+", metavar="JOB.yaml")
@@ -118,6 +132,12 @@ def main(argv: list[str] | None = None) -> int:
         return getattr(tools, args.command)(args)
     if args.command == "selftest":
         return _selftest(args)
+    if args.command == "watch":
+        if not args.interval > 0:
+            print(f"error: --interval {args.interval:g}: give a time in seconds above 0, for example 0.5",
+                  file=sys.stderr)
+            return EXIT_BAD_INPUT
+        return watch(args.job, args, interval=args.interval)
     return _run(args)
 
 

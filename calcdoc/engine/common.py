@@ -4,7 +4,6 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 from functools import lru_cache
-from importlib import metadata
 from typing import Any
 
 from .. import __version__
@@ -13,6 +12,7 @@ from ..job.messages import problem
 from ..job.model import Job
 from ..physics.calc import Calc, Term
 from ..physics.closed import LegResult
+from ..physics.dome import saturation_dome
 from ..physics.fluids import closest_fluids
 from ..physics.gas import R_U, Gas, IdealGas, RealGas
 from .diagnose import fluid_problems
@@ -20,14 +20,24 @@ from .diagnose import fluid_problems
 __all__ = ["gas_findings", "job_basis", "make_gas", "saturation_near", "shared_real_gas", "site_calcs", "software_versions"]
 
 def software_versions() -> dict[str, str]:
-    """The versions of calcdoc and the libraries it computes and renders with."""
+    """The versions of calcdoc and the libraries it computes and renders with (a fresh dict)."""
+    return dict(_versions())
+
+
+@lru_cache(maxsize=1)
+def _versions() -> tuple[tuple[str, str], ...]:
+    # reading the installed packages' metadata costs ~40 ms: once per process (a sweep asks per point;
+    # the modules loaded cannot change version while the process runs); imported here, as it pulls in
+    # the email package (~15 ms) that checking a job file does not need
+    from importlib import metadata
+
     out = {"calcdoc": __version__}
     for dist in ("CoolProp", "pint", "PyYAML", "Jinja2", "matplotlib", "weasyprint", "numpy"):
         try:
             out[dist] = metadata.version(dist)
         except metadata.PackageNotFoundError:
             out[dist] = "not installed"
-    return out
+    return tuple(out.items())
 
 
 def make_gas(job: Job) -> tuple[Gas, list[Calc]]:
@@ -130,7 +140,7 @@ def saturation_near(gas: Gas, legs: Sequence[LegResult]
     if not isinstance(gas, RealGas) or not gas.pure:
         return None
     if any(st.T < 1.3 * gas.Tc for leg in legs for st in leg.path):
-        curve = gas.saturation_curve()
+        curve = saturation_dome(gas)         # from the user's cache after the first job of the fluid
         return tuple(curve) if curve else None
     return None
 

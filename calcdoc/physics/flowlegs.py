@@ -217,7 +217,8 @@ def _machine_real(ctx, comp, i, s1, P2, r, eta_p, eta_s, T2m, facts):
         calcs.append(Calc(f"T_{j}", T2, "K", "~T_on_path_compressor" if comp else "~T_on_path_expander", "flow.direct",
                           {"P2": _t("P", j, P2, "Pa"), "eta": Term("η_p", eta_p, "")},
                           note=Finding("rk_steps", {"steps": steps})))
-        guess = s1.T * (T2 / s1.T) ** (eta_p if comp else 1.0 / eta_p)
+        # one Newton step at P2 from the path's end, free of flashes: ds = cp·dT/T at constant P
+        guess = T2 * math.exp((s1.s - p2.state.s) / p2.cp)
         p2s = _isentropic_end(ctx, s1, P2, guess)
         eps = None
     else:

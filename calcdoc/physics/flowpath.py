@@ -14,10 +14,16 @@ so along the path, with x = ln P and e = 1/η_p (compressor) or η_p (expander),
 
 Every right-hand side needs one PT flash (cheap for pure fluids, and for mixtures once the gas
 phase is imposed outside the phase envelope), which gives v, cp and (∂v/∂T)_P together. Eq. (1) is
-integrated with the Dormand–Prince 5(4) embedded Runge–Kutta pair (Dormand & Prince 1980) with
-step-size control on the local error in enthalpy, cp·|δT| ≤ 2e-6·|Δh_est| per step; the global
-error this gives in head is below 1e-6 relative in the tests against fine fixed-step integrations
-(methane, nitrogen, CO2 80 → 250 bar at 40 °C).
+integrated with the Dormand–Prince 5(4) embedded Runge–Kutta pair (Dormand & Prince 1980), the
+fifth-order solution carried forward (local extrapolation), the fourth-order one giving the error
+estimate. Error norm: the estimate in enthalpy, cp·|δT|, relative to the path's estimated enthalpy
+change. Step control: the proportional–integral controller of Gustafsson (1991) with the constants
+of Hairer & Wanner's DOPRI5 (exponents 0.2 − 0.75·β and β = 0.04, safety 0.9, growth ≤ 10, no
+growth right after a rejected step), and the first step from one trial slope (Hairer, Nørsett &
+Wanner 1993, sec. II.4). The step sequence then varies smoothly with the tolerance, so a tighter
+tolerance never takes fewer flashes (tests/physics/test_polytropic_path.py). With the default
+tolerance the error of the carried fifth-order solution is below 1e-6 relative in head against
+fine independent integrations (methane, nitrogen, CO2 80 → 250 bar at 40 °C).
 """
 from __future__ import annotations
 
@@ -33,8 +39,12 @@ __all__ = ["Eos", "Point", "TwoPhaseError", "polytropic_path", "solve_T"]
 #: Most flashes with the phase-stability test spent on one two-phase state of a mixture.
 WET_ITERATIONS = 40
 
-#: Local error per step in enthalpy, relative to the estimated enthalpy change of the path.
-STEP_RTOL = 2e-6
+#: Tolerance of the embedded (fourth-order) error estimate per step in enthalpy, relative to the
+#: estimated enthalpy change of the path; the fifth-order solution carried forward is about two
+#: orders of magnitude more exact (measured: below 1e-6 relative in head, see the module note).
+STEP_RTOL = 1e-4
+#: Step controller (Gustafsson 1991; the DOPRI5 constants of Hairer & Wanner).
+_BETA, _SAFETY, _FAC_MIN, _FAC_MAX = 0.04, 0.9, 0.2, 10.0
 
 # Dormand–Prince 5(4) tableau (Dormand & Prince 1980; Hairer, Nørsett & Wanner 1993, table II.5.2).
 _C = (0.0, 1 / 5, 3 / 10, 4 / 5, 8 / 9, 1.0, 1.0)
@@ -402,6 +412,9 @@ def polytropic_path(eos: Eos, p1: Point, P2: float, eta_p: float, rtol: float = 
     path = [s1]
     end = p1
     steps = 0
+    alpha = 0.2 - 0.75 * _BETA
+    r_old = 1e-4            # previous accepted error ratio (the integral part of the controller)
+    rejected = False
     for _ in range(400):
         if sgn * (X - x) <= 1e-14:
             break
@@ -422,10 +435,11 @@ def polytropic_path(eos: Eos, p1: Point, P2: float, eta_p: float, rtol: float = 
                 P = math.exp(x)
                 raise TwoPhaseError(Finding("what.path"), P, eos.gas.dew_temperature(P) or T)
             h *= 0.5
+            rejected = True
             continue
         T_new = T + h * sum(a * k for a, k in zip(_A[6], ks[:6]))
-        err = abs(h * sum(a * k for a, k in zip(_E, ks))) * max(cp, pts[-1].cp)
-        if err <= tol_h:
+        r = abs(h * sum(a * k for a, k in zip(_E, ks))) * max(cp, pts[-1].cp) / tol_h
+        if r <= 1.0:
             last = h == X - x
             x = X if last else x + h
             T = T_new
@@ -436,7 +450,13 @@ def polytropic_path(eos: Eos, p1: Point, P2: float, eta_p: float, rtol: float = 
             path += [p.state for p in pts[:4]] + [end.state]   # stages at c = 1/5, 3/10, 4/5, 8/9
             if last:
                 break
-        h *= min(4.0, max(0.2, 0.9 * (tol_h / max(err, 1e-300)) ** 0.2))
+            fac = _SAFETY * max(r, 1e-10) ** -alpha * r_old ** _BETA
+            h *= min(1.0 if rejected else _FAC_MAX, max(_FAC_MIN, fac))
+            r_old = max(r, 1e-4)
+            rejected = False
+        else:
+            h *= max(_FAC_MIN, _SAFETY * r ** -0.2)
+            rejected = True
     else:
         raise PhysicsError("path.steps_exhausted", steps=400)
     # the last stage of the last step is evaluated at exactly (ln P2, T2): the end state

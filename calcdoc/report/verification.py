@@ -17,7 +17,7 @@ from markupsafe import Markup, escape
 from .. import units
 from ..job.source import dump as dump_yaml
 from . import format as fmt
-from .render import _env, _Fetcher, fonts_dir, templates_dir
+from .render import _env, _Fetcher, fonts_dir, load_weasyprint, templates_dir
 
 __all__ = ["context", "render_html", "render_pdf"]
 
@@ -103,6 +103,7 @@ def render_html(data: dict) -> str:
 
 def render_pdf(results_json: str, case_files: list[tuple[str, str]]) -> bytes:
     """The verification report as PDF bytes, with its JSON and the case files attached."""
+    load_weasyprint()
     from weasyprint import HTML, Attachment
 
     data = json.loads(results_json)

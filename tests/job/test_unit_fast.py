@@ -1,0 +1,68 @@
+"""The units read without pint give the very floats pint gives, so a job reads the same either way."""
+from __future__ import annotations
+
+import random
+import subprocess
+import sys
+from pathlib import Path
+
+import pint
+import pytest
+
+from calcdoc import units
+
+EXAMPLES = sorted((Path(__file__).resolve().parents[2] / "example_jobs").glob("*.yaml"))
+
+
+@pytest.fixture(scope="module")
+def ureg():
+    u = pint.UnitRegistry()          # built from pint's own definitions, not calcdoc's cache
+    u.define("kmol = 1000 * mol")
+    return u
+
+
+VALUES = [0.0, 1.0, 7.5, 101.325, 1e-9, 123456.789, -40.0] + [random.Random(17).uniform(-1e4, 1e4) for _ in range(40)]
+
+
+@pytest.mark.parametrize("unit, si", sorted(units._FAST))
+def test_table_factor_is_pints(ureg, unit, si):
+    f = units._FAST[(unit, si)]
+    for x in VALUES:
+        assert x * f == ureg.Quantity(x, unit).to(si).magnitude     # bit for bit
+
+
+@pytest.mark.parametrize("unit", sorted(units._FAST_T))
+def test_absolute_temperatures_are_pints(ureg, unit):
+    scale, offset = units._FAST_T[unit]
+    for x in VALUES:
+        assert x * scale + offset == ureg.Quantity(x, unit).to("K").magnitude
+        assert units.parse_quantity(f"{x!r} {unit}", "temperature").si == ureg.Quantity(x, unit).to("K").magnitude
+
+
+@pytest.mark.parametrize("unit", sorted(units._FAST_DT))
+def test_temperature_differences_are_pints(ureg, unit):
+    for x in VALUES:
+        assert x * units._FAST_DT[unit] == ureg.Quantity(x, unit).to("K").magnitude
+
+
+def test_parse_goes_through_the_table_for_spellings_engineers_write(ureg):
+    for text, kind, unit, si in [("7.5 bar", "pressure", "bar", "Pa"), ("50 L", "volume", "liter", "m**3"),
+                                 ("3000 kg/h", "mass_flow", "kg/hour", "kg/s"), ("113 in3", "volume", "in**3", "m**3"),
+                                 ("1200 m3/h", "volume_flow", "m**3/hour", "m**3/s"), ("250 kW", "power", "kW", "W")]:
+        assert units.parse_quantity(text, kind).si == ureg.Quantity(float(text.split()[0]), unit).to(si).magnitude
+
+
+def test_check_of_the_examples_needs_no_pint():
+    code = ("import sys\nfrom calcdoc.cli import main\n"
+            f"codes = [main(['check', p]) for p in {[str(p) for p in EXAMPLES]!r}]\n"
+            "print(codes, 'pint' in sys.modules)")
+    r = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, timeout=120)
+    assert r.returncode == 0, r.stderr
+    assert r.stdout.strip().splitlines()[-1] == f"{[0] * len(EXAMPLES)} False"
+
+
+def test_unknown_or_wrong_units_still_get_pints_judgement():
+    with pytest.raises(units.UnitParseError, match="not a unit of volume"):
+        units.parse_quantity("5 bar", "volume")
+    with pytest.raises(units.UnitParseError, match="not a unit calcdoc knows"):
+        units.parse_quantity("5 blorp", "pressure")
