@@ -395,9 +395,9 @@ def parse_quantity(value: Any, kind: str, atmosphere: float | None = None, allow
         return _parse_temperature(num, unit_text, entered)
     if kind == "temperature_difference":
         return _parse_temperature_difference(num, unit_text, entered)
-    factor = _FAST.get((_pint_unit(unit_text), si_unit))
-    if factor is not None:
-        si = num * factor
+    fast = _FAST.get((_pint_unit(unit_text), si_unit))
+    if fast is not None:
+        si = num * fast
     else:
         si = _pint_si(num, unit_text, si_unit, kind, entered)
     if gauge:
@@ -413,7 +413,7 @@ def _pint_si(num: float, unit_text: str, si_unit: str, kind: str, entered: str) 
     ureg = registry()
     try:
         q = ureg.Quantity(num, _pint_unit(unit_text))
-        return q.to(si_unit).magnitude
+        return float(q.to(si_unit).magnitude)
     except Exception as exc:  # pint raises several unrelated types for bad unit text
         raise UnitParseError(
             f"'{entered}': {_unit_problem(unit_text, exc, kind)}",

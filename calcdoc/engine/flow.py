@@ -9,13 +9,14 @@ for the real-gas path integration. Sign convention: shaft work and heat INTO the
 from __future__ import annotations
 
 import dataclasses
+from collections.abc import Iterator
 from dataclasses import dataclass
 from typing import Any
 
 from ..errors import Finding, JobError, PhysicsError
 from ..job.flowopts import direction_problem
 from ..job.messages import problem
-from ..job.model import Input, Job, LegOptions, LegSpec, Staging
+from ..job.model import Drop, Input, Job, LegOptions, LegSpec, Staging
 from ..physics.calc import Calc, Term
 from ..physics.closed import LegResult
 from ..physics.flowlegs import Ctx, MeasuredEndError, heat_exchanger, machine, reversible, throttle
@@ -45,7 +46,7 @@ class FlowResults(Results):
 
     totals: tuple[Calc, ...] = ()
 
-    def all_calcs(self):
+    def all_calcs(self) -> Iterator[Calc]:
         """Every calc of the job, the train totals last."""
         yield from super().all_calcs()
         yield from self.totals
@@ -82,6 +83,7 @@ def run_flow(job: Job) -> FlowResults:
             made, info = _leg(job, ctx, leg, leg.options, len(legs) + 1, s, plan)
         except TwoPhaseError as exc:
             target = (leg.end.get("pressure") or leg.end.get("pressure_ratio") or leg.end.get("temperature"))
+            assert target is not None, "every flow leg has an end target"
             raise _problem_at(job, target, Finding("leg.two_phase", {"leg": leg.name, "process": leg.process,
                                                                       "error": exc})) from None
         except MeasuredEndError as exc:
@@ -114,9 +116,10 @@ def run_flow(job: Job) -> FlowResults:
     if cond is not None:
         totals += (cond,)
     basis = job_basis(job, gas)
-    basis["flow"] = {"standard": None if job.start.standard_volume_flow is None else {
-        "pressure": {"value": job.start.standard_pressure.si, "unit": "Pa"},
-        "temperature": {"value": job.start.standard_temperature.si, "unit": "K"}}}
+    std_P, std_T = job.start.standard_pressure, job.start.standard_temperature
+    basis["flow"] = {"standard": None if job.start.standard_volume_flow is None or std_P is None or std_T is None else {
+        "pressure": {"value": std_P.si, "unit": "Pa"},
+        "temperature": {"value": std_T.si, "unit": "K"}}}
     extra: dict[str, Any] = {"totals": {c.symbol: {"value": c.value, "unit": c.unit} for c in totals}}
     if staging_json:
         extra["staging"] = staging_json
@@ -125,7 +128,7 @@ def run_flow(job: Job) -> FlowResults:
     if plan.series_json:
         extra["interstage"] = plan.series_json
     if eos is not None:
-        extra["eos_flashes"] = getattr(gas, "flashes", 0) + (moist[0].moist.flashes if moist else 0)  # type: ignore[assignment]
+        extra["eos_flashes"] = getattr(gas, "flashes", 0) + (moist[0].moist.flashes if moist else 0)
     if moist:
         basis["gas"]["moist"] = {"model": "ideal mixture of the dry-air model and water vapour",
                                  "humidity_ratio_start": moist[0].W}
@@ -167,6 +170,8 @@ def _flow_calcs(job: Job, ctx: Ctx, s1: State, plan: Plan) -> dict[str, Calc]:
                                                                          "v1": Term("v_1", s1.v, "m**3/kg")},
                             note="start_volume_flow")
     else:
+        assert st.standard_pressure is not None and st.standard_temperature is not None \
+            and st.standard_volume_flow is not None, "the job layer requires the reference conditions"
         Ps, Ts = st.standard_pressure.si, st.standard_temperature.si
         try:
             sstd = ctx.state(Ps, Ts)
@@ -196,12 +201,12 @@ def _end_pressure(job: Job, leg: LegSpec, s: State) -> float:
     return s.P * leg.end["pressure_ratio"].si
 
 
-def _target_inp(leg: LegSpec):
+def _target_inp(leg: LegSpec) -> Input | None:
     return leg.end.get("pressure") or leg.end.get("pressure_ratio")
 
 
 def _leg(job: Job, ctx: Ctx, leg: LegSpec, opt: LegOptions, i: int, s: State,
-         plan: Plan) -> tuple[list[LegResult], dict]:
+         plan: Plan) -> tuple[list[LegResult], dict[str, Any]]:
     proc = leg.process
     wrong_way = direction_problem(job, leg, s.P, s.T)
     if wrong_way is not None:
@@ -239,7 +244,7 @@ def _exchanger(ctx: Ctx, name: str, proc: str, i: int, s: State, P2: float, T2: 
     return heat_exchanger(ctx, name, proc, i, s, P2, T2, dcalc)
 
 
-def _drop(job: Job, drop, i: int, P1: float) -> tuple[float, Calc | None]:
+def _drop(job: Job, drop: Drop, i: int, P1: float) -> tuple[float, Calc | None]:
     j = i + 1
     P2 = drop.outlet(P1)
     if drop.inp is None:
@@ -250,7 +255,7 @@ def _drop(job: Job, drop, i: int, P1: float) -> tuple[float, Calc | None]:
         return P2, Calc(f"P_{j}", P2, "Pa", "{P1}·(1 − {d})", "flow.pressure_drop",
                         {"P1": Term(f"P_{i}", P1, "Pa"), "d": Term("δ", drop.fraction, "")})
     return P2, Calc(f"P_{j}", P2, "Pa", "{P1} − {dP}", "flow.pressure_drop",
-                    {"P1": Term(f"P_{i}", P1, "Pa"), "dP": Term("ΔP", drop.absolute, "Pa")})
+                    {"P1": Term(f"P_{i}", P1, "Pa"), "dP": Term("ΔP", drop.absolute or 0.0, "Pa")})
 
 
 def _given_discharge(job: Job, st: Staging, k: int, N: int, Ps: float, P_out: float, i: int) -> tuple[float, Calc]:
@@ -272,7 +277,8 @@ def _given_discharge(job: Job, st: Staging, k: int, N: int, Ps: float, P_out: fl
     return P, Calc(f"P_{j}", P, "Pa", "{P}", "input", {"P": Term(f"P_{j}", P, "Pa")}, note="given_pressure")
 
 
-def _train(job, ctx, leg, st: Staging, N, i, s, P_out, eta_p, eta_s, eta_m,
+def _train(job: Job, ctx: Ctx, leg: LegSpec, st: Staging, N: int, i: int, s: State, P_out: float, eta_p: float | None,
+           eta_s: float | None, eta_m: float | None,
            etas: tuple[float, ...] = ()) -> list[LegResult]:
     d = st.drop
     given = bool(st.ratios or st.pressures)
@@ -306,7 +312,8 @@ def _train(job, ctx, leg, st: Staging, N, i, s, P_out, eta_p, eta_s, eta_m,
     return out
 
 
-def _staged(job, ctx, leg, st: Staging, i, s, P_out, eta_p, eta_s, eta_m) -> tuple[list[LegResult], dict]:
+def _staged(job: Job, ctx: Ctx, leg: LegSpec, st: Staging, i: int, s: State, P_out: float, eta_p: float | None,
+            eta_s: float | None, eta_m: float | None) -> tuple[list[LegResult], dict[str, Any]]:
     etas = tuple(e.si for e in leg.options.eta_stages)
     if st.fixed is not None:
         N = st.fixed
@@ -315,6 +322,7 @@ def _staged(job, ctx, leg, st: Staging, i, s, P_out, eta_p, eta_s, eta_m) -> tup
         why = Finding(f"staging.{rule}" if rule != "given" else "staging.given", {"stages": N})
         info = {"leg": leg.name, "stages": N, "rule": rule}
     else:
+        assert st.T_max is not None, "a staging block gives the stages or the discharge-temperature limit"
         limit = st.T_max.si
         tried: list[tuple[int, float | None]] = []
         legs = []
@@ -355,7 +363,7 @@ def _staged(job, ctx, leg, st: Staging, i, s, P_out, eta_p, eta_s, eta_m) -> tup
     return legs, info
 
 
-def _with(res: LegResult, **kw) -> LegResult:
+def _with(res: LegResult, **kw: Any) -> LegResult:
     return dataclasses.replace(res, **kw)
 
 
@@ -366,11 +374,11 @@ def _totals(legs: list[LegResult]) -> tuple[Calc, ...]:
     where mechanical efficiencies are given; a shaft total that leaves a machine out says so."""
     out = []
 
-    def pick(key: str, positive: bool):
+    def pick(key: str, positive: bool) -> list[tuple[LegResult, Calc]]:
         return [(leg, leg.quantities[key]) for leg in legs if key in leg.quantities
                 and (leg.quantities[key].value > 0 if positive else leg.quantities[key].value < 0)]
 
-    def total(sym: str, note: str | Finding, items, negate: bool) -> None:
+    def total(sym: str, note: str | Finding, items: list[tuple[LegResult, Calc]], negate: bool) -> None:
         if not items:
             return
         names = {f"x{k}": Term(f"{c.symbol} ({leg.name})", c.value, c.unit) for k, (leg, c) in enumerate(items)}

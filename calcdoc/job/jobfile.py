@@ -284,10 +284,10 @@ class _Validator(Reader):
                     mixture = [(c, x / total) for c, x in mixture]
                     if basis == "mass":
                         mixture = _mole_fractions(mixture)
-        names = [(m["fluid"], fluid, "fluid.unknown")] if fluid else []
+        given: list[tuple[Node, str, str]] = [(m["fluid"], fluid, "fluid.unknown")] if fluid else []
         if "mixture" in m and m["mixture"].kind == "map":
-            names += [(xnode, component_name(c), "fluid.unknown_component") for c, xnode in m["mixture"].value.items()]
-        for at, nm, code in names:
+            given += [(xnode, component_name(c), "fluid.unknown_component") for c, xnode in m["mixture"].value.items()]
+        for at, nm, code in given:
             if not known_fluid(nm):
                 f = Finding("fluid.mixture_string" if is_mixture_string(nm) else code,
                             {"name": nm, "close": tuple(closest_fluids(nm))})

@@ -201,7 +201,7 @@ def _unknown_fluid(v: dict[str, Any], system: Units) -> tuple[str, str]:
 
 
 @_spoken("fluid.mixture_string")
-def _mixture_string(v: dict[str, Any], system: str) -> tuple[str, str]:
+def _mixture_string(v: dict[str, Any], system: Units) -> tuple[str, str]:
     return (f"'{v['name']}' is a mixture or library string, not a fluid name",
             "name one fluid (fluid: Nitrogen), or give the components with their mole fractions: "
             "mixture: {Nitrogen: 0.78, Oxygen: 0.21, Argon: 0.01}")

@@ -255,6 +255,13 @@ PERCENT_MARGIN: dict[str, tuple[str, str]] = {
     "volume_change": ("refused", "the trade states no percent margin on a change of volume; give it in units"),
     "max_temperature": _TEMPERATURE, "min_temperature": _TEMPERATURE,
     "max_wall_temperature": _TEMPERATURE, "min_wall_temperature": _TEMPERATURE,
+    # reciprocating cylinders
+    "displacement": _FLOW, "cylinder_flow": _FLOW, "indicated_power": _POWER,
+    "volumetric_efficiency": _NUMBER, "capacity": _NUMBER,
+    "rod_load_compression": ("percent", "a rod load has a true zero (no force); frame ratings are compared with the "
+                                        "gas load with a percent margin (common practice)"),
+    "rod_load_tension": ("percent", "a rod load has a true zero (no force); frame ratings are compared with the gas "
+                                    "load with a percent margin (common practice)"),
 }
 
 _MARGIN_EXAMPLE = {"temperature": "10 K", "pressure": "0.5 bar", "dimensionless": "0.02", "specific_energy": "5 kJ/kg",

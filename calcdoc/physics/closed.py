@@ -9,6 +9,7 @@ from __future__ import annotations
 import math
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
+from typing import Any
 
 from ..errors import Finding, PhysicsError
 from .calc import Calc, Term
@@ -37,9 +38,9 @@ class LegResult:
     quantities: dict[str, Calc]   # the results-contract quantities of the leg
     calcs: tuple[Calc, ...]       # every step, in order, for the report
     path: tuple[State, ...]       # states along the path, start to end
-    warnings: tuple[str, ...] = ()
+    warnings: tuple[Finding, ...] = ()
     facts: tuple[Finding, ...] = ()   # statements about the leg (formula chosen, n derived), as codes
-    series: dict | None = None    # a vessel leg's time series: t [s], P [Pa], T [K], m [kg], m_dot [kg/s]
+    series: dict[str, Any] | None = None    # a vessel leg's time series: t [s], P [Pa], T [K], m [kg], m_dot [kg/s]
 
 
 def polytropic_work(P1V1: float, r: float, n: float) -> float:

@@ -24,7 +24,7 @@ __all__ = ["FORMAT", "computed", "saturation_dome"]
 
 #: Version of the dome's layout (the temperatures chosen, the fields kept); part of the key, so that a
 #: change to ``RealGas.saturation_curve`` never meets an old file.
-FORMAT = 1
+FORMAT = 2
 
 #: Domes computed (not read from the cache) in this process: for the benchmarks and tests.
 computed = 0
@@ -39,8 +39,8 @@ def _key(gas: RealGas, n: int) -> str:
     return f"{name}-{CoolProp.__version__}-{rev}-{n}-v{FORMAT}"
 
 
-def saturation_dome(gas: RealGas, n: int = 60) -> list[tuple[float, float, float, float]] | None:
-    """Points (T, P, v, s) of the saturated liquid line then the vapour line back, as
+def saturation_dome(gas: RealGas, n: int = 60) -> list[tuple[float, float, float, float, float]] | None:
+    """Points (T, P, v, s, h) of the saturated liquid line then the vapour line back, as
     ``gas.saturation_curve(n)`` gives them; None for a mixture."""
     global computed
     if not gas.pure:
@@ -58,19 +58,19 @@ def saturation_dome(gas: RealGas, n: int = 60) -> list[tuple[float, float, float
     return curve
 
 
-def _read(path: Path) -> list[tuple[float, float, float, float]] | None:
+def _read(path: Path) -> list[tuple[float, float, float, float, float]] | None:
     try:
         with open(path, encoding="utf-8") as fh:
             data = json.load(fh)
-        curve = [(float(a), float(b), float(c), float(d)) for a, b, c, d in data["points"]]
+        curve = [(float(a), float(b), float(c), float(d), float(e)) for a, b, c, d, e in data["points"]]
     except (OSError, ValueError, KeyError, TypeError):
         return None
-    if not curve or any(len(p) != 4 or not all(math.isfinite(x) for x in p) for p in curve):
+    if not curve or any(len(p) != 5 or not all(math.isfinite(x) for x in p) for p in curve):
         return None
     return curve
 
 
-def _write(path: Path, curve: list[tuple[float, float, float, float]]) -> None:
+def _write(path: Path, curve: list[tuple[float, float, float, float, float]]) -> None:
     text = json.dumps({"points": [list(p) for p in curve]}, separators=(",", ":"))
     try:
         fd, tmp = tempfile.mkstemp(prefix=".dome-", suffix=".tmp", dir=path.parent)

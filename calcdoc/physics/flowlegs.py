@@ -11,6 +11,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from typing import Any
 
 from ..errors import Finding, PhysicsError
 from .calc import Calc, Term
@@ -41,6 +42,12 @@ class Ctx:
         """True for the ideal-gas model."""
         return self.eos is None
 
+    @property
+    def real(self) -> Eos:
+        """The real-gas flash wrapper (only on the real-gas paths)."""
+        assert self.eos is not None, "a real-gas path of an ideal-gas leg"
+        return self.eos
+
     def point(self, P: float, T: float) -> Point | State:
         """The state at (P, T), with cp and (∂v/∂T)_P for a real gas."""
         return self.eos.pt(P, T) if self.eos is not None else self.gas.state_PT(P, T)
@@ -53,6 +60,9 @@ class Ctx:
     def state_any(self, P: float, T: float) -> State:
         """The state at (P, T), two-phase allowed (a mixture inside its envelope)."""
         return self.eos.state_any(P, T) if self.eos is not None else self.gas.state_PT(P, T)
+
+
+_MachineEnd = tuple[State, State, "Calc | None", Calc, list[State], list[Calc]]
 
 
 def _t(sym: str, i: int, value: float, unit: str) -> Term:
@@ -88,7 +98,7 @@ def machine(ctx: Ctx, name: str, process: str, i: int, s1: State, P2: float, eta
     calcs = [Calc("r", r, "", "{P2}/{P1}", "flow.ratio", {"P2": _t("P", j, P2, "Pa"), "P1": _t("P", i, s1.P, "Pa")})]
     facts: list[Finding] = []
     fn = _machine_ideal if ctx.ideal else _machine_real
-    s2, s2s, eta_p, eta_s, path, more = fn(ctx, comp, i, s1, P2, r, eta_p, eta_s, T2_measured, facts)
+    s2, s2s, ep, es, path, more = fn(ctx, comp, i, s1, P2, r, eta_p, eta_s, T2_measured, facts)
     calcs += more
     gas = ctx.gas
     calcs += _h_calcs(gas, [(str(i), s1), (str(j), s2)])
@@ -99,29 +109,29 @@ def machine(ctx: Ctx, name: str, process: str, i: int, s1: State, P2: float, eta
              {"h2": _t("h", j, s2.h, "J/kg"), "h1": _t("h", i, s1.h, "J/kg")})
     HS = Calc("H_s", Hs, "J/kg", "{h2s} − {h1}", "flow.head_isentropic",
               {"h2s": Term(f"h_{j}s", s2s.h, "J/kg"), "h1": _t("h", i, s1.h, "J/kg")})
-    q = {"work_in": W, "head_isentropic": HS, "eta_s": eta_s}
+    q: dict[str, Calc] = {"work_in": W, "head_isentropic": HS, "eta_s": es}
     calcs += [W, HS]
-    if eta_p is None:       # a wet expander end: no polytropic head, exponent or Schultz comparison
+    if ep is None:       # a wet expander end: no polytropic head, exponent or Schultz comparison
         _power(ctx, q, calcs, w, comp, eta_m)
         return LegResult(name, process, i, s1, s2, q, tuple(calcs), tuple(path), (), tuple(facts))
-    Hp = eta_p.value * w if comp else w / eta_p.value
+    Hp = ep.value * w if comp else w / ep.value
     HP = Calc("H_p", Hp, "J/kg", "{eta}·{w}" if comp else "{w}/{eta}", "flow.head_polytropic",
-              {"eta": Term("η_p", eta_p.value, ""), "w": Term("w_in", w, "J/kg")},
+              {"eta": Term("η_p", ep.value, ""), "w": Term("w_in", w, "J/kg")},
               note="polytropic_head")
     calcs.append(HP)
     n = _n_calc(i, s1, s2)
     if n is not None:
         calcs.append(n)
-    q = {"work_in": W, "head": HP, "head_isentropic": HS, "eta_p": eta_p, "eta_s": eta_s}
+    q = {"work_in": W, "head": HP, "head_isentropic": HS, "eta_p": ep, "eta_s": es}
     if n is not None:
         q["n"] = n
     if not ctx.ideal and n is not None:
-        q.update(_schultz(i, s1, s2, s2s, Hs, w, eta_p.value, comp, n.value, calcs, facts))
+        q.update(_schultz(i, s1, s2, s2s, Hs, w, ep.value, comp, n.value, calcs, facts))
     _power(ctx, q, calcs, w, comp, eta_m)
     return LegResult(name, process, i, s1, s2, q, tuple(calcs), tuple(path), (), tuple(facts))
 
 
-def _power(ctx: Ctx, q: dict, calcs: list[Calc], w: float, comp: bool, eta_m: float | None) -> None:
+def _power(ctx: Ctx, q: dict[str, Calc], calcs: list[Calc], w: float, comp: bool, eta_m: float | None) -> None:
     P = Calc("P_gas", ctx.m_dot * w, "W", "{m}·{w}", "flow.power", _flow_terms(ctx.m_dot, w))
     D = Calc("Q̇", 0.0, "W", "0", "flow.firstlaw_adiabatic", note="adiabatic_machine")
     calcs += [P, D]
@@ -134,8 +144,9 @@ def _power(ctx: Ctx, q: dict, calcs: list[Calc], w: float, comp: bool, eta_m: fl
         q["shaft_power"] = S
 
 
-def _machine_ideal(ctx, comp, i, s1, P2, r, eta_p, eta_s, T2m, facts):
-    gas = ctx.gas
+def _machine_ideal(ctx: Ctx, comp: bool, i: int, s1: State, P2: float, r: float, eta_p: float | None,
+                   eta_s: float | None, T2m: float | None, facts: list[Finding]) -> _MachineEnd:
+    gas: Any = ctx.gas       # an IdealGas (k, R)
     j = i + 1
     k = gas.k
     T1 = s1.T
@@ -155,6 +166,7 @@ def _machine_ideal(ctx, comp, i, s1, P2, r, eta_p, eta_s, T2m, facts):
         calcs.append(Calc(f"T_{j}", T2, "K", "{T1} + ({T2s} − {T1})/{eta}" if comp else "{T1} + {eta}·({T2s} − {T1})",
                           "flow.eta_s", {"T1": T1t, "T2s": Term(f"T_{j}s", T2s, "K"), "eta": et}))
     else:
+        assert T2m is not None, "no efficiency: the job layer requires a measured end temperature"
         T2 = T2m
         _check_measured(comp, P2, T1, T2, T2s)
         calcs.append(Calc(f"T_{j}", T2, "K", "{T2}", "input", {"T2": _t("T", j, T2, "K")}, note="measured"))
@@ -194,8 +206,8 @@ def _isentropic_end(ctx: Ctx, s1: State, P2: float, T_guess: float, wet_ok: bool
     """The isentropic end state at P2; an expander's may be two-phase (``wet_ok``)."""
     what = {"s": s1.s}
     if wet_ok:
-        return _as_point(ctx.eos.flash_P(P2, "s", s1.s, T_guess, what))
-    return solve_T(ctx.eos, P2, T_guess, "s", s1.s, what)
+        return _as_point(ctx.real.flash_P(P2, "s", s1.s, T_guess, what))
+    return solve_T(ctx.real, P2, T_guess, "s", s1.s, what)
 
 
 def _as_point(st: State) -> Point:
@@ -203,9 +215,10 @@ def _as_point(st: State) -> Point:
     return Point(st, math.nan, math.nan)
 
 
-def _machine_real(ctx, comp, i, s1, P2, r, eta_p, eta_s, T2m, facts):
-    eos = ctx.eos
-    gas = ctx.gas
+def _machine_real(ctx: Ctx, comp: bool, i: int, s1: State, P2: float, r: float, eta_p: float | None,
+                  eta_s: float | None, T2m: float | None, facts: list[Finding]) -> _MachineEnd:
+    eos = ctx.real
+    gas = eos.gas
     j = i + 1
     p1 = eos.pt(s1.P, s1.T)
     calcs = []
@@ -237,13 +250,15 @@ def _machine_real(ctx, comp, i, s1, P2, r, eta_p, eta_s, T2m, facts):
                 p2 = _as_point(eos.flash_P(P2, "h", h2, T_guess, {"h": h2}))
             calcs.append(Calc(f"T_{j}", p2.state.T, "K", f"T(P_{j}, h_{j})", "eos.real"))
         else:
+            assert T2m is not None, "no efficiency: the job layer requires a measured end temperature"
             _check_measured(comp, P2, s1.T, T2m, p2s.state.T)
             p2 = eos.pt(P2, T2m)
             calcs.append(Calc(f"T_{j}", T2m, "K", "{T2}", "input", {"T2": _t("T", j, T2m, "K")}, note="measured"))
-        if p2.state.quality is not None:
+        x2 = p2.state.quality
+        if x2 is not None:
             # a wet end: no single-phase path of constant polytropic efficiency reaches it
             s2 = p2.state
-            calcs.append(Calc(f"x_{j}", s2.quality, "", f"x(P_{j}, h_{j})", "eos.real", note="flow.vapour_fraction"))
+            calcs.append(Calc(f"x_{j}", x2, "", f"x(P_{j}, h_{j})", "eos.real", note="flow.vapour_fraction"))
             facts.append(Finding("flow.wet_expander_end", {"x": s2.quality, "T": s2.T, "P": s2.P}))
             return _machine_real_wet(calcs, i, s1, p2.state, p2s.state, eta_s, facts)
         eta_p, path, steps = _eta_p_from_end(ctx, comp, p1, p2, p2s)
@@ -303,7 +318,7 @@ def _eta_p_from_end(ctx: Ctx, comp: bool, p1: Point, p2: Point, p2s: Point) -> t
         e0 = 0.8
 
     def g(e: float) -> tuple[float, list[State], int]:
-        end, path, steps = polytropic_path(ctx.eos, p1, s2.P, e)
+        end, path, steps = polytropic_path(ctx.real, p1, s2.P, e)
         return end.state.T - s2.T, path, steps
 
     a, (ga, _, _) = e0, g(e0)
@@ -324,7 +339,8 @@ def _eta_p_from_end(ctx: Ctx, comp: bool, p1: Point, p2: Point, p2s: Point) -> t
     return b, path_b, steps_b
 
 
-def _schultz(i, s1, s2, s2s, Hs, w, eta_p, comp, n, calcs, facts) -> dict[str, Calc]:
+def _schultz(i: int, s1: State, s2: State, s2s: State, Hs: float, w: float, eta_p: float, comp: bool, n: float,
+             calcs: list[Calc], facts: list[Finding]) -> dict[str, Calc]:
     """The Schultz (1962) polytropic head from the same end states, as ASME PTC 10 uses it."""
     j = i + 1
     lr = math.log(s2.P / s1.P)
@@ -382,7 +398,7 @@ def throttle(ctx: Ctx, name: str, i: int, s1: State, P2: float) -> LegResult:
         s2 = ctx.gas.state_PT(P2, s1.T)
         path = [s1] + [ctx.gas.state_PT(P, s1.T) for P in _path_P(s1.P, P2, 4)] + [s2]
         note = "throttle_ideal"
-    elif ctx.gas.pure:
+    elif ctx.real.gas.pure:
         # pure fluid: the HmassP flash gives single-phase and two-phase outlets alike
         path = [s1] + [ctx.gas.state_Ph(P, s1.h) for P in _path_P(s1.P, P2, 4) + [P2]]
         s2 = path[-1]
@@ -390,7 +406,7 @@ def throttle(ctx: Ctx, name: str, i: int, s1: State, P2: float) -> LegResult:
     else:
         path, T = [s1], s1.T
         for P in _path_P(s1.P, P2, 4) + [P2]:
-            st = ctx.eos.flash_P(P, "h", s1.h, T, {"h": s1.h})
+            st = ctx.real.flash_P(P, "h", s1.h, T, {"h": s1.h})
             T = st.T
             path.append(st)
         s2 = path[-1]
@@ -405,7 +421,7 @@ def throttle(ctx: Ctx, name: str, i: int, s1: State, P2: float) -> LegResult:
               {"T2": _t("T", j, s2.T, "K"), "T1": _t("T", i, s1.T, "K")}, difference=True)
     calcs.append(dT)
     facts_wet = []
-    if wet:
+    if wet and s2.quality is not None:
         calcs.append(Calc(f"x_{j}", s2.quality, "", f"x(P_{j}, h_{j})", ctx.gas.eos_method,
                           note="flow.vapour_fraction"))
         facts_wet.append(Finding("leg.two_phase_outlet", {"x": s2.quality, "T": s2.T, "P": s2.P}))
@@ -421,7 +437,7 @@ def throttle(ctx: Ctx, name: str, i: int, s1: State, P2: float) -> LegResult:
 def reversible(ctx: Ctx, name: str, process: str, i: int, s1: State, P2: float, n: float | None) -> LegResult:
     """Internally reversible steady flow: w_in = ∫v·dP along the path, q_in = Δh − w_in."""
     j = i + 1
-    gas = ctx.gas
+    gas: Any = ctx.gas       # IdealGas (k, R) on the ideal paths, RealGas on the others
     ins = {"P1": _t("P", i, s1.P, "Pa"), "P2": _t("P", j, P2, "Pa"), "v1": _t("v", i, s1.v, "m**3/kg")}
     calcs: list[Calc] = []
     if process == "isentropic":
@@ -433,9 +449,9 @@ def reversible(ctx: Ctx, name: str, process: str, i: int, s1: State, P2: float, 
             W = Calc("w_in", wv, "J/kg", "{k}/({k} − 1)·{P1}·{v1}·(({P2}/{P1})^(({k} − 1)/{k}) − 1)",
                      "flow.work_isentropic_ideal", {**ins, "k": Term("k", k, "")})
         else:
-            p1 = ctx.eos.pt(s1.P, s1.T)
-            pe, pts, _ = polytropic_path(ctx.eos, p1, P2, 1.0)
-            s2 = solve_T(ctx.eos, P2, pe.state.T, "s", s1.s, {"s": s1.s}).state
+            p1 = ctx.real.pt(s1.P, s1.T)
+            pe, pts, _ = polytropic_path(ctx.real, p1, P2, 1.0)
+            s2 = solve_T(ctx.real, P2, pe.state.T, "s", s1.s, {"s": s1.s}).state
             pts = pts[1:-1]
             wv = s2.h - s1.h
             calcs.append(Calc(f"T_{j}", s2.T, "K", f"T(P_{j}, s = s_{i})", "eos.real"))
@@ -443,9 +459,10 @@ def reversible(ctx: Ctx, name: str, process: str, i: int, s1: State, P2: float, 
             W = Calc("w_in", wv, "J/kg", "{h2} − {h1}", "flow.firstlaw_adiabatic",
                      {"h2": _t("h", j, s2.h, "J/kg"), "h1": _t("h", i, s1.h, "J/kg")}, note="isentropic_work")
     elif process == "isothermal":
-        if not ctx.ideal and ctx.eos.side(s1.P, s1.T) != ctx.eos.side(P2, s1.T):
-            AS = ctx.gas.AS   # the saturation pressure at T_1 lies between the ends
-            AS.update(ctx.gas._CP.QT_INPUTS, 1.0, s1.T)
+        if not ctx.ideal and ctx.real.side(s1.P, s1.T) != ctx.real.side(P2, s1.T):
+            rg = ctx.real.gas     # the saturation pressure at T_1 lies between the ends
+            AS = rg.AS
+            AS.update(rg._CP.QT_INPUTS, 1.0, s1.T)
             raise TwoPhaseError(Finding("what.isothermal_path"), AS.p(), s1.T)
         pts = [ctx.state(P, s1.T) for P in _path_P(s1.P, P2)]
         s2 = ctx.state(P2, s1.T)
@@ -463,6 +480,7 @@ def reversible(ctx: Ctx, name: str, process: str, i: int, s1: State, P2: float, 
             W = Calc("w_in", wv, "J/kg", "({h2} − {h1}) − {q}", "flow.firstlaw_heat",
                      {"h2": _t("h", j, s2.h, "J/kg"), "h1": _t("h", i, s1.h, "J/kg"), "q": Term("q_in", qv, "J/kg")})
     else:
+        assert n is not None, "a polytropic flow leg has its exponent (the job layer requires it)"
         v_at = [s1.v * (s1.P / P) ** (1.0 / n) for P in _path_P(s1.P, P2)]
         v2 = s1.v * (s1.P / P2) ** (1.0 / n)
         calcs.append(Calc(f"v_{j}", v2, "m**3/kg", "{v1}·({P1}/{P2})^(1/{n})", "path.polytropic",
@@ -501,4 +519,4 @@ def reversible(ctx: Ctx, name: str, process: str, i: int, s1: State, P2: float, 
 def _state_Pv(ctx: Ctx, P: float, v: float, s1: State) -> State:
     if ctx.ideal:
         return ctx.gas.state_Pv(P, v)
-    return solve_T(ctx.eos, P, s1.T * (P * v) / (s1.P * s1.v), "v", v, {"v": v}).state
+    return solve_T(ctx.real, P, s1.T * (P * v) / (s1.P * s1.v), "v", v, {"v": v}).state

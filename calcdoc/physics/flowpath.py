@@ -137,7 +137,7 @@ class Eos:
         dew = self.dew_temperature(P)
         return dew is not None and T > dew + m
 
-    def saturation(self, P: float) -> tuple[float, dict, dict] | None:
+    def saturation(self, P: float) -> tuple[float, dict[str, float], dict[str, float]] | None:
         """Pure fluids below the critical pressure: (T_sat, saturated liquid, saturated vapour), each
         a dict of h, s, v; None for a mixture, at or above the critical pressure, or when unknown."""
         gas = self.gas

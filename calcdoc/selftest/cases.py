@@ -107,7 +107,8 @@ class _Reader(Reader):
         self.hints = {k: "required keys here: " + ", ".join(required) for k in required}
         return super().mapping(node, allowed, required, what)
 
-    def text(self, node: Node | None, default: str = "", required: bool = True, what: str = "text") -> str:
+    def text(self, node: Node | None, default: str = "", required: bool = True, what: str = "text",
+             most: int = 0) -> str:
         """A non-empty text, stripped."""
         if node is None:
             return default
