@@ -110,7 +110,7 @@ REFERENCES: dict[str, Reference] = {
         "SciPy's RK45 docstring (sec. II.4) and stored reference lists giving the 2nd edition, 1993"),
     "Wagner-JPCRD-2002": Reference(
         "Wagner, W., Pruß, A.", "The IAPWS Formulation 1995 for the Thermodynamic Properties of Ordinary Water "
-        "Substance for General and Scientific Use", "2002", "J. Phys. Chem. Ref. Data 31(2), 387–535, "
+        "Substance for General and Scientific Use", "2002", "J. Phys. Chem. Ref. Data 31, 387–535, "
         "doi:10.1063/1.1461829", "Whole paper (the saturation pressure of water from the equation of state)",
         "CoolProp's own bibliography file, entry Wagner-JPCRD-2002"),
 }
