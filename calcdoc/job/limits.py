@@ -23,7 +23,7 @@ from .quantities import (
 from .reader import Reader
 from .source import Node
 
-__all__ = ["LIMIT_KEYS", "Places", "names_of", "read_limits"]
+__all__ = ["LIMIT_KEYS", "Places", "names_of", "quantity_at", "read_limits"]
 
 LIMIT_KEYS = ("name", "quantity", "at", "max", "min", "margin", "basis")
 
@@ -92,6 +92,24 @@ def names_of(node: Node | None, add: Callable[..., None]) -> list[tuple[str, Nod
 
 
 
+def quantity_at(r: Reader, qnode: Node | None, atnode: Node | None, system: str,
+                places: Places) -> tuple[Quantity | None, list[tuple[str, Node]]]:
+    """A quantity named in the job (by name or alias) and the places (``at``) it is asked at, each checked
+    against the system and the job's legs and states (shared by limits and solves; problems go to the reader)."""
+    qname = r.text(qnode, required=True, what="quantity name") if qnode is not None else ""
+    q = quantity_named(qname) if qname else None
+    if qname:
+        why = quantity_problem(q, qname, system)
+        if why:
+            assert qnode is not None
+            r.add(qnode, *why)
+            q = None
+    at = names_of(atnode, r.add)
+    if q is not None:
+        places.check(q, at, r.add)
+    return q, at
+
+
 def read_limits(r: Reader, items: list[Node], system: str, places: Places) -> tuple[LimitSpec, ...]:
     """The job's limits, validated (problems go to the reader)."""
     out: list[LimitSpec] = []
@@ -110,16 +128,7 @@ def read_limits(r: Reader, items: list[Node], system: str, places: Places) -> tu
                   path=f"{item.path}.basis")
         if "max" not in m and "min" not in m:
             r.add(item, "the limit gives neither max nor min", "give max:, min: or both")
-        qname = r.text(m.get("quantity"), required=True, what="quantity name") if "quantity" in m else ""
-        q = quantity_named(qname) if qname else None
-        if qname:
-            why = quantity_problem(q, qname, system)
-            if why:
-                r.add(m["quantity"], *why)
-                q = None
-        at = names_of(m.get("at"), r.add)
-        if q is not None:
-            places.check(q, at, r.add)
+        q, at = quantity_at(r, m.get("quantity"), m.get("at"), system, places)
         bounds: dict[str, Input | None] = {}
         for key in ("max", "min"):
             if key in m and q is not None:

@@ -21,9 +21,9 @@ import re
 
 from .. import units
 from ..errors import Problem
-from .limits import Places, names_of
+from .limits import Places, quantity_at
 from .model import Input, Job, SolveSpec
-from .quantities import Quantity, quantity_named, quantity_problem
+from .quantities import Quantity
 from .reader import Reader, describe
 from .source import Node
 from .sweep import _block_span, resolve_path
@@ -74,18 +74,10 @@ def read_solve(r: Reader, tree: Node, system: str, places: Places, inputs: list[
     equals: Input | None = None
     if "so_that" in m:
         sm = r.mapping(m["so_that"], SO_THAT_KEYS, required=("quantity", "equals"), what="the target of the solve")
-        qname = r.text(sm.get("quantity"), required=True, what="quantity name") if "quantity" in sm else ""
-        q = quantity_named(qname) if qname else None
-        if qname:
-            refused = quantity_problem(q, qname, system)
-            if refused:
-                r.add(sm["quantity"], *refused)
-                q = None
-        names = names_of(sm.get("at"), r.add)
+        q, names = quantity_at(r, sm.get("quantity"), sm.get("at"), system, places)
         if len(names) > 1:
             r.add(sm["at"], f"the target names {len(names)} places", "name one leg or state: the solve meets one value")
         if q is not None:
-            places.check(q, names, r.add)
             if "equals" in sm:
                 equals = r.quantity(sm["equals"], q.kind, positive=False, record=False)
         at = tuple(n for n, _ in names)
