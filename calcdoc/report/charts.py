@@ -80,14 +80,7 @@ def diagrams(results, system: str) -> dict[str, str]:
     sat = results.saturation
     # --- P–v
     fig, ax = plt.subplots(figsize=(6.3, 3.6))
-    allv, allP = [], []
-    for k, leg in enumerate(legs):
-        v = _conv([s.v for s in leg.path], "m**3/kg", system)
-        P = _conv([s.P for s in leg.path], "Pa", system)
-        allv += v
-        allP += P
-        ax.plot(v, P, color=PALETTE[k % len(PALETTE)], label=f"{leg.i}→{leg.i + 1}  {_clip(leg.name)}")
-    _mark_states(ax, results, system, "v", "P")
+    allv, allP = _plot_paths(ax, results, system, "v", "P")
     vs = Ps = None
     if sat and getattr(results.gas, "pure", True):   # a mixture's envelope: on T–s and P–h only
         vs = _conv([p[2] for p in sat], "m**3/kg", system)
@@ -107,14 +100,7 @@ def diagrams(results, system: str) -> dict[str, str]:
     plt.close(fig)
     # --- T–s
     fig, ax = plt.subplots(figsize=(6.3, 3.6))
-    alls, allT = [], []
-    for k, leg in enumerate(legs):
-        s = _conv([st.s for st in leg.path], "J/(kg*K)", system)
-        T = _conv([st.T for st in leg.path], "K", system)
-        alls += s
-        allT += T
-        ax.plot(s, T, color=PALETTE[k % len(PALETTE)], label=f"{leg.i}→{leg.i + 1}  {_clip(leg.name)}")
-    _mark_states(ax, results, system, "s", "T")
+    alls, allT = _plot_paths(ax, results, system, "s", "T")
     ss = Ts = None
     if sat:
         ss = _conv([p[3] for p in sat], "J/(kg*K)", system)
@@ -135,14 +121,7 @@ def diagrams(results, system: str) -> dict[str, str]:
 def _ph(plt, results, system: str, sat) -> str:
     """P–h diagram with the saturation dome or phase envelope, drawn where a state is two-phase."""
     fig, ax = plt.subplots(figsize=(6.3, 3.6))
-    allh, allP = [], []
-    for k, leg in enumerate(results.legs):
-        h = _conv([st.h for st in leg.path], "J/kg", system)
-        P = _conv([st.P for st in leg.path], "Pa", system)
-        allh += h
-        allP += P
-        ax.plot(h, P, color=PALETTE[k % len(PALETTE)], label=f"{leg.i}→{leg.i + 1}  {leg.name}")
-    _mark_states(ax, results, system, "h", "P")
+    allh, allP = _plot_paths(ax, results, system, "h", "P")
     hs = _conv([p[4] for p in sat], "J/kg", system)
     Ps = _conv([p[1] for p in sat], "Pa", system)
     _dome(ax, hs, Ps)
@@ -211,8 +190,32 @@ def _limits(ax, xs, ys, dome_x=None, dome_y=None):
     ax.set_ylim(*pad(y0, y1, logy))
 
 
+#: The SI unit of each state property a chart draws.
+_STATE_UNITS = {"v": "m**3/kg", "P": "Pa", "s": "J/(kg*K)", "T": "K", "h": "J/kg"}
+
+
+def _leg_label(leg) -> str:
+    """A leg in a chart legend: its states and its name as written (cut with a mark when long)."""
+    return f"{leg.i}→{leg.i + 1}  {_clip(leg.name)}"
+
+
+def _plot_paths(ax, results, system, x: str, y: str) -> tuple[list[float], list[float]]:
+    """Every leg drawn along its computed path in the plane (x, y), and the numbered states marked; returns
+    every plotted x and y (in display units) for framing the axes."""
+    xs: list[float] = []
+    ys: list[float] = []
+    for k, leg in enumerate(results.legs):
+        xv = _conv([getattr(st, x) for st in leg.path], _STATE_UNITS[x], system)
+        yv = _conv([getattr(st, y) for st in leg.path], _STATE_UNITS[y], system)
+        xs += xv
+        ys += yv
+        ax.plot(xv, yv, color=PALETTE[k % len(PALETTE)], label=_leg_label(leg))
+    _mark_states(ax, results, system, x, y)
+    return xs, ys
+
+
 def _mark_states(ax, results, system, x, y):
-    unit = {"v": "m**3/kg", "P": "Pa", "s": "J/(kg*K)", "T": "K", "h": "J/kg"}
+    unit = _STATE_UNITS
     for rec in results.states:
         xv = units.display(getattr(rec.state, x), unit[x], system, absolute=True)[0]
         yv = units.display(getattr(rec.state, y), unit[y], system, absolute=True)[0]
@@ -256,7 +259,7 @@ def time_chart(results, system: str) -> str:
             continue
         t = [t0 + x for x in ts["t"]]
         colour = PALETTE[k % len(PALETTE)]
-        label = f"{leg.i}→{leg.i + 1}  {leg.name}"
+        label = _leg_label(leg)
         axP.plot(t, _conv(ts["P"], "Pa", system), color=colour, label=label)
         axT.plot(t, _conv(ts["T"], "K", system), color=colour, label=label)
         if "T_wall" in ts:
