@@ -12,18 +12,30 @@ its budget is spent. The strategy, first that finishes:
    drawn on the charts as such; budget :data:`PR_BUDGET_S`.
 3. ``none``: no envelope; every flash runs the phase-stability test (slower, still bounded per flash).
 
-Results are cached per composition for the life of the process. SI throughout: T [K], P [Pa].
+Results are kept per composition for the life of the process, and on disk in the user's cache directory
+(``units.cache_dir('envelope')``), keyed by the composition, the budgets and the CoolProp version, so that a
+job's later runs (and ``calcdoc watch``) do not trace again: a traced envelope costs 0.1–0.7 s, one that
+falls back costs the whole budget. The file holds the outcome as well, so a later run takes the same model
+as the first did on that machine, whatever its load. The points are JSON numbers, which read back as the
+same floats (results and charts from the cache are byte-identical). Deleting the folder is always safe.
+SI throughout: T [K], P [Pa].
 """
 from __future__ import annotations
 
+import hashlib
+import json
 import math
 import multiprocessing
 import os
+import tempfile
 import time
 from dataclasses import dataclass
+from pathlib import Path
 from typing import Any
 
-__all__ = ["Envelope", "HEOS_BUDGET_S", "PR_BUDGET_S", "PR_MARGIN_K", "phase_envelope"]
+from ..units import cache_dir
+
+__all__ = ["Envelope", "FORMAT", "HEOS_BUDGET_S", "PR_BUDGET_S", "PR_MARGIN_K", "phase_envelope", "traced"]
 
 #: Budget of the envelope of the Helmholtz-energy mixture model, in processor seconds of the tracing process (the
 #: envelopes that finish take 0.08–0.7 s here for 5 to 9 components). Processor time rather than elapsed time, so
@@ -39,6 +51,11 @@ POLL_S = 0.02
 #: Helmholtz-energy model [K] (common practice: the two models' dew temperatures of natural gases differ by a
 #: few kelvin).
 PR_MARGIN_K = 15.0
+#: Version of the cached file's layout; part of its name, so a change never meets an old file.
+FORMAT = 1
+
+#: Envelopes traced (not read from a cache) in this process: for the benchmarks and tests.
+traced = 0
 
 
 @dataclass(frozen=True)
@@ -68,12 +85,25 @@ _CACHE: dict[tuple[object, ...], Envelope] = {}
 def phase_envelope(components: tuple[str, ...], x: tuple[float, ...], heos_budget: float = HEOS_BUDGET_S,
                    pr_budget: float = PR_BUDGET_S) -> Envelope:
     """The phase envelope of the mixture (mole fractions ``x``), first of HEOS then of PR that finishes
-    within its budget [s]; cached per composition and budgets."""
+    within its budget [s]; cached per composition and budgets, in this process and on disk."""
+    global traced
     key = (components, x, heos_budget, pr_budget)
     if key in _CACHE:
         return _CACHE[key]
+    folder = cache_dir("envelope")
+    path = folder / f"{_file_key(components, x, heos_budget, pr_budget)}.json" if folder is not None else None
+    env = _read(path) if path is not None else None
+    if env is None:
+        env = _trace(components, x, heos_budget, pr_budget)
+        traced += 1
+        if path is not None:
+            _write(path, env)
+    _CACHE[key] = env
+    return env
+
+
+def _trace(components: tuple[str, ...], x: tuple[float, ...], heos_budget: float, pr_budget: float) -> Envelope:
     tried = []
-    env = None
     rss = 0
     for backend, budget in (("HEOS", heos_budget), ("PR", pr_budget)):
         t0 = time.perf_counter()
@@ -81,12 +111,53 @@ def phase_envelope(components: tuple[str, ...], x: tuple[float, ...], heos_budge
         rss = max(rss, rss_b)
         tried.append((backend.lower(), outcome, time.perf_counter() - t0))
         if outcome == "ok":
-            env = Envelope(tuple(p[:2] for p in pts), backend.lower(), tuple(tried), rss, tuple(pts))
-            break
-    if env is None:
-        env = Envelope((), "none", tuple(tried), rss)
-    _CACHE[key] = env
-    return env
+            return Envelope(tuple(p[:2] for p in pts), backend.lower(), tuple(tried), rss, tuple(pts))
+    return Envelope((), "none", tuple(tried), rss)
+
+
+def _file_key(components: tuple[str, ...], x: tuple[float, ...], heos_budget: float, pr_budget: float) -> str:
+    import CoolProp
+    import CoolProp.CoolProp as CP
+
+    what = json.dumps([list(components), list(x), heos_budget, pr_budget, CoolProp.__version__,
+                       CP.get_global_param_string("gitrevision")])
+    return f"{hashlib.sha256(what.encode('utf-8')).hexdigest()[:24]}-v{FORMAT}"
+
+
+def _read(path: Path) -> Envelope | None:
+    """The envelope kept in ``path``, or None when it is missing, unreadable or not one of ours."""
+    try:
+        with open(path, encoding="utf-8") as fh:
+            data = json.load(fh)
+        source = data["source"]
+        tried = tuple((str(m), str(o), float(t)) for m, o, t in data["tried"])
+        curve = tuple((float(a), float(b), float(c), float(d), float(e)) for a, b, c, d, e in data["curve"])
+    except (OSError, ValueError, KeyError, TypeError):
+        return None
+    if source not in ("heos", "pr", "none") or not all(math.isfinite(v) for p in curve for v in p):
+        return None
+    if (source == "none") != (not curve) or [m for m, _, _ in tried] != ["heos", "pr"][:len(tried)]:
+        return None
+    return Envelope(tuple(p[:2] for p in curve), source, tried, 0, curve)
+
+
+def _write(path: Path, env: Envelope) -> None:
+    """Keep ``env`` in ``path``: written to a private name, then renamed into place (atomic on POSIX)."""
+    text = json.dumps({"source": env.source, "tried": [list(t) for t in env.tried],
+                       "curve": [list(p) for p in env.curve]}, separators=(",", ":"))
+    try:
+        fd, tmp = tempfile.mkstemp(prefix=".envelope-", suffix=".tmp", dir=path.parent)
+    except OSError:
+        return
+    try:
+        with os.fdopen(fd, "w", encoding="utf-8") as fh:
+            fh.write(text)
+        os.replace(tmp, path)
+    except OSError:
+        try:
+            os.unlink(tmp)
+        except OSError:
+            pass
 
 
 def _child(conn: Any, backend: str, components: tuple[str, ...], x: tuple[float, ...]) -> None:
