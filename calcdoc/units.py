@@ -11,8 +11,6 @@ from __future__ import annotations
 
 import os
 import re
-import shutil
-import tempfile
 from dataclasses import dataclass
 from functools import lru_cache
 from pathlib import Path
@@ -211,6 +209,9 @@ def _pint_cache(pint: Any) -> str | None:
     final = root / f"pint-{pint.__version__}"
     if final.is_dir():
         return str(final)
+    import shutil  # here, not at the top: only the first run on a machine builds the cache
+    import tempfile
+
     try:
         tmp = tempfile.mkdtemp(prefix=".pint-", dir=root)
     except OSError:

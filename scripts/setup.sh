@@ -44,3 +44,8 @@ if [ ! -f "$stamp" ] || [ "$(cat "$stamp")" != "$want" ]; then
   fi
   echo "$want" > "$stamp"
 fi
+
+# calcdoc's own modules compiled to bytecode, as pip does for a package it installs (an editable install
+# does not; and where PYTHONDONTWRITEBYTECODE is set, Python would compile every module from source at
+# each start, ~60 ms of every command). Only modules changed since the last run are compiled again.
+.venv/bin/python -m compileall -q -j 0 calcdoc > /dev/null

@@ -23,23 +23,9 @@ from ..job.files import read_regular
 from ..job.source import MAX_BYTES, decode, load as read_yaml
 from ..report.output import WRITTEN, output_paths, safe_stem, write
 from ..report.terminal import summary
+from .light import print_job_error, print_job_warnings
 
-__all__ = ["output_groups", "print_job_error", "print_job_warnings", "run_one"]
-
-
-def print_job_error(exc: JobError) -> None:
-    """Every problem of a job file, one line each, on stderr."""
-    n = len(exc.problems)
-    for p in exc.problems:
-        print(f"error: {p}", file=sys.stderr)
-    if n > 1:
-        print(f"{n} problems found.", file=sys.stderr)
-
-
-def print_job_warnings(job) -> None:
-    """What the job file shows without computing that does not stop a run, one line each, on stderr."""
-    for p in job.warnings:
-        print(f"warning: {p}", file=sys.stderr)
+__all__ = ["output_groups", "run_one"]
 
 
 def output_groups(paths: list[str]) -> list[list[int]]:

@@ -1,8 +1,7 @@
-"""The small commands: ``diff`` (two revisions), ``schema`` (JSON Schema of the job file) and ``new``
-(a starter job). Called by :mod:`calcdoc.cli`, which alone maps errors to exit codes."""
+"""The small commands: ``diff`` (two revisions) and ``new`` (a starter job). Called by
+:mod:`calcdoc.cli.commands`, which alone maps errors to exit codes."""
 from __future__ import annotations
 
-import json
 import sys
 from pathlib import Path
 
@@ -12,13 +11,12 @@ from ..engine.revision import compare
 from ..errors import EXIT_BAD_INPUT, EXIT_INTERNAL, EXIT_INTERRUPTED, EXIT_OK, CalcdocError, JobError, PhysicsError
 from ..job import load
 from ..job.revision import load_revision
-from ..job.schema import job_schema
 from ..job.starter import starter
 from ..report.output import write_atomic
 from ..report.terminal import diff_text
-from .runjob import print_job_error
+from .light import print_job_error
 
-__all__ = ["diff", "new", "schema"]
+__all__ = ["diff", "new"]
 
 
 def diff(args) -> int:
@@ -50,12 +48,6 @@ def diff(args) -> int:
               "please report it with the job files", file=sys.stderr)
         return EXIT_INTERNAL
     print(diff_text(d, new.units), end="")
-    return EXIT_OK
-
-
-def schema(args) -> int:
-    """``calcdoc schema``: the JSON Schema of the job file."""
-    print(json.dumps(job_schema(), indent=2, ensure_ascii=False))
     return EXIT_OK
 
 

@@ -9,7 +9,6 @@ from __future__ import annotations
 
 import dataclasses
 import datetime as _dt
-import hashlib
 from dataclasses import fields
 from pathlib import Path
 
@@ -115,7 +114,7 @@ class _Validator(Reader):
             return None
         if system == "vessel" and vessel is None:
             return None
-        return Job(self.name, data, hashlib.sha256(data).hexdigest(), calc, unit_system, site, gas, system,
+        return Job(self.name, data, calc, unit_system, site, gas, system,
                    start, tuple(legs), (), assumptions, (), {}, leaves(tree), vessel=vessel)
 
     @staticmethod

@@ -7,7 +7,6 @@ The engine judges them against the results (:mod:`calcdoc.engine.checks`).
 """
 from __future__ import annotations
 
-import difflib
 from collections.abc import Callable, Iterable
 
 from .model import Input, LegSpec, LimitSpec
@@ -70,6 +69,8 @@ class Places:
                     add(node, f"{q.name} is a quantity of a leg, but '{name}' is a state label",
                         f"name a leg: {', '.join(repr(n) for n in self.legs)}")
                 continue
+            import difflib  # only when a name is not known: the suggestion
+
             close = difflib.get_close_matches(name, self.legs + self.labels, n=1, cutoff=0.6)
             hint = f"did you mean '{close[0]}'? " if close else ""
             add(node, f"this job has no leg or state named '{name}'", f"{hint}{self.valid()}")

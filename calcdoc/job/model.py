@@ -10,6 +10,7 @@ import time, and ``dataclasses.fields`` is enough to generate the JSON Schema al
 from __future__ import annotations
 
 from dataclasses import MISSING, dataclass, field, fields
+from functools import cached_property
 from typing import Any
 
 from ..errors import Problem
@@ -331,7 +332,6 @@ class Job:
 
     name: str                       # the file name as given by the user (for messages)
     data: bytes                     # the job file, byte for byte
-    sha256: str
     calc: TitleBlock
     units: DisplayUnits             # report units: base system "SI" or "US" and the job's own units
     site: Site
@@ -348,6 +348,13 @@ class Job:
     vessel: VesselSpec | None = None
     solve: SolveSpec | None = None
     warnings: tuple[Problem, ...] = ()   # what the job file shows without computing that does not stop a run
+
+    @cached_property
+    def sha256(self) -> str:
+        """SHA-256 of the job file's bytes, in hex (computed when first asked: ``calcdoc check`` never needs it)."""
+        import hashlib
+
+        return hashlib.sha256(self.data).hexdigest()
 
     @property
     def text(self) -> str:

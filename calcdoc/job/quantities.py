@@ -5,7 +5,6 @@ the kind of its unit (a key of :data:`calcdoc.units.DIMENSIONS`) and the systems
 """
 from __future__ import annotations
 
-import difflib
 from dataclasses import dataclass
 
 from .. import units
@@ -176,6 +175,8 @@ def quantity_named(name: str) -> Quantity | None:
 def quantity_problem(q: Quantity | None, name: str, system: str) -> tuple[str, str] | None:
     """Why a quantity name cannot be used in a job of this system, or None."""
     if q is None:
+        import difflib  # only when a name is not known: the suggestion
+
         close = difflib.get_close_matches(name, list(QUANTITIES) + list(ALIASES), n=1, cutoff=0.6)
         hint = f"did you mean '{close[0]}'? " if close else ""
         return (f"'{name}' is not a quantity calcdoc knows",

@@ -7,7 +7,6 @@ found and what would be valid.
 from __future__ import annotations
 
 import datetime as _dt
-import difflib
 import math
 
 from .. import units
@@ -72,6 +71,8 @@ class Reader:
         for key, child in node.value.items():
             self.where[child.path] = child.where
             if key not in allowed:
+                import difflib  # only when a name is not known: the suggestion
+
                 close = difflib.get_close_matches(key, allowed, n=1, cutoff=0.6)
                 hint = f"did you mean '{close[0]}'? " if close else ""
                 if close and close[0] in required and close[0] not in node.value:
@@ -162,6 +163,8 @@ class Reader:
             folded = {c.casefold(): c for c in choices}
             val = folded.get(val.strip().casefold(), val)
         if not isinstance(val, str) or val not in choices:
+            import difflib  # only when a name is not known: the suggestion
+
             close = difflib.get_close_matches(str(val), choices, n=1, cutoff=0.6) if isinstance(val, str) else []
             hint = f"did you mean '{close[0]}'? " if close else ""
             self.add(node, f"{describe(node) if not isinstance(node.value, str) else repr(node.value)} is not one of "

@@ -15,7 +15,6 @@ what a reader of the job file would expect from one sweep; the message says how 
 """
 from __future__ import annotations
 
-import difflib
 import json
 import re
 
@@ -92,6 +91,8 @@ def read_solve(r: Reader, tree: Node, system: str, places: Places, inputs: list[
 
 def _could_mean(text: str, inputs: list[Input]) -> str:
     paths = [i.path for i in inputs]
+    import difflib  # only when a name is not known: the suggestion
+
     close = difflib.get_close_matches(text, paths, n=4, cutoff=0.4)
     shown = close or paths[:12]
     return "name a quantity the job gives; paths that could be meant: " + ", ".join(shown)

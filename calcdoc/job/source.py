@@ -68,8 +68,12 @@ def load(text: str, name: str) -> Node:
     import yaml
 
     try:
-        _check_depth(text, name)
-        _check_expansion(text, name)
+        try:   # libyaml where installed (~10x faster); anything it finds is looked at again in Python, whose
+            _check_depth(text, name, fast=True)      # places and words the messages are written against
+            _check_expansion(text, name, fast=True)
+        except (yaml.YAMLError, JobError):
+            _check_depth(text, name)
+            _check_expansion(text, name)
         root = yaml.compose(text, Loader=yaml.SafeLoader)
     except yaml.MarkedYAMLError as exc:
         raise JobError([_syntax_problem(exc, name)]) from None
@@ -138,15 +142,24 @@ def _syntax_problem(exc: Any, name: str) -> Problem:
     return Problem(name, line, col, "", f"YAML syntax error: {what}", valid)
 
 
-def _check_depth(text: str, name: str) -> None:
-    """Refuse nesting deeper than MAX_DEPTH from the token stream (no recursion), with its place."""
+def _loader(fast: bool) -> Any:
+    """PyYAML's safe loader: libyaml's (C) when ``fast`` and installed, else the pure-Python one, whose
+    line, column and error wording every message of ours is written against."""
+    import yaml
+
+    return getattr(yaml, "CSafeLoader", yaml.SafeLoader) if fast else yaml.SafeLoader
+
+
+def _check_depth(text: str, name: str, fast: bool = False) -> None:
+    """Refuse nesting deeper than MAX_DEPTH from the token stream (no recursion), with its place. ``fast``: scan
+    with libyaml where PyYAML was built with it."""
     import yaml
 
     depth = 0
     opens = (yaml.BlockMappingStartToken, yaml.BlockSequenceStartToken, yaml.FlowMappingStartToken,
              yaml.FlowSequenceStartToken)
     closes = (yaml.BlockEndToken, yaml.FlowMappingEndToken, yaml.FlowSequenceEndToken)
-    for tok in yaml.scan(text, Loader=yaml.SafeLoader):
+    for tok in yaml.scan(text, Loader=_loader(fast)):
         if isinstance(tok, opens):
             depth += 1
             if depth > MAX_DEPTH:
@@ -158,9 +171,10 @@ def _check_depth(text: str, name: str) -> None:
             depth -= 1
 
 
-def _check_expansion(text: str, name: str) -> None:
+def _check_expansion(text: str, name: str, fast: bool = False) -> None:
     """Refuse a file whose aliases expand it beyond MAX_NODES values, at the alias that crosses the bound (from
-    the event stream, before anything is built): the place to fix is that alias, not the anchor it repeats."""
+    the event stream, before anything is built): the place to fix is that alias, not the anchor it repeats.
+    ``fast``: parse with libyaml where PyYAML was built with it."""
     import yaml
 
     sizes: dict[str, int] = {}
@@ -172,7 +186,7 @@ def _check_expansion(text: str, name: str) -> None:
             anchor, count = stack[-1]
             stack[-1] = (anchor, count + n)
 
-    for ev in yaml.parse(text, Loader=yaml.SafeLoader):
+    for ev in yaml.parse(text, Loader=_loader(fast)):
         if isinstance(ev, yaml.AliasEvent):
             n = sizes.get(ev.anchor, 1)
             total += n

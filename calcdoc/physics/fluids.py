@@ -1,15 +1,15 @@
 """The fluids the equation-of-state library knows: names, aliases, and the closest names to a misspelt one."""
 from __future__ import annotations
 
-import difflib
 import json
 import os
 from functools import lru_cache
-from importlib import metadata
 from pathlib import Path
 
-__all__ = ["TRADE_NAMES", "closest_fluids", "component_name", "fluid_names", "is_mixture_string", "known_fluid",
-           "molar_mass"]
+from ..units import cache_dir
+
+__all__ = ["TRADE_NAMES", "closest_fluids", "component_name", "coolprop_version", "fluid_names", "is_mixture_string",
+           "known_fluid", "molar_mass"]
 
 
 #: The trade's short names of mixture components → CoolProp fluid names (the one table).
@@ -40,8 +40,8 @@ def fluid_names() -> dict[str, str]:
     """Every name CoolProp accepts (fluid names and their aliases) → the fluid's own name.
 
     Importing CoolProp takes a second or more, so the list is kept in the user's cache folder
-    (``$XDG_CACHE_HOME/calcdoc`` or ``~/.cache/calcdoc``) under the installed CoolProp's version: a job
-    can be checked without loading the library. A missing, unreadable or foreign cache is rebuilt from
+    (:func:`calcdoc.units.cache_dir`) under the installed CoolProp's version: a job can be checked
+    without loading the library. A missing, unreadable or foreign cache is rebuilt from
     CoolProp itself; a cache folder that cannot be written is not an error.
     """
     cache = _cache_file()
@@ -65,13 +65,40 @@ def fluid_names() -> dict[str, str]:
 
 
 def _cache_file() -> Path | None:
+    version = coolprop_version()
+    folder = cache_dir()
+    if version is None or folder is None:
+        return None
+    safe = "".join(ch if ch.isalnum() or ch in ".-_" else "_" for ch in version)
+    return folder / f"coolprop-{safe}-fluids.json"
+
+
+@lru_cache(maxsize=1)
+def coolprop_version() -> str | None:
+    """The installed CoolProp's version, without importing it; None when it is not installed.
+
+    Read from the name of its ``.dist-info`` folder beside the package (a directory listing), which is
+    how an installer records it; where that is not found, from ``importlib.metadata`` (which parses
+    every installed package's metadata: ~20 ms, most of a ``calcdoc check``)."""
+    import importlib.util
+
+    spec = importlib.util.find_spec("CoolProp")
+    if spec is None or not spec.origin:
+        return None
+    site = Path(spec.origin).parent.parent
     try:
-        version = metadata.version("CoolProp")
+        found = [d.name[len("coolprop-"):-len(".dist-info")] for d in site.iterdir()
+                 if d.name.lower().startswith("coolprop-") and d.name.endswith(".dist-info")]
+    except OSError:
+        found = []
+    if len(found) == 1:
+        return found[0]
+    from importlib import metadata
+
+    try:
+        return metadata.version("CoolProp")
     except metadata.PackageNotFoundError:
         return None
-    root = os.environ.get("XDG_CACHE_HOME") or os.path.join(os.path.expanduser("~"), ".cache")
-    safe = "".join(ch if ch.isalnum() or ch in ".-_" else "_" for ch in version)
-    return Path(root) / "calcdoc" / f"coolprop-{safe}-fluids.json"
 
 
 def _names_from_library() -> dict[str, str]:
@@ -106,5 +133,7 @@ def known_fluid(name: str) -> bool:
 def closest_fluids(name: str, n: int = 3) -> list[str]:
     """The fluids whose names or aliases are closest to ``name``."""
     known = fluid_names()
+    import difflib  # only when a name is not known: the suggestion
+
     close = difflib.get_close_matches(name, list(known), n=6, cutoff=0.6)
     return list(dict.fromkeys(known[c] for c in close))[:n]

@@ -5,7 +5,7 @@ import json
 
 from _limits_helpers import ideal_job, write
 
-from calcdoc import cli
+import calcdoc
 
 
 def test_a_folder_with_one_broken_job_finishes_the_rest(tmp_path, capsys):
@@ -16,7 +16,7 @@ def test_a_folder_with_one_broken_job_finishes_the_rest(tmp_path, capsys):
     write(jobs, "c_broken.yaml", ideal_job().replace("process: polytropic", "process: politropic"))
     write(jobs, "notes.txt", "not a job")
     out = tmp_path / "out"
-    code = cli.main(["run", str(jobs), "--no-pdf", "-o", str(out)])
+    code = calcdoc.main(["run", str(jobs), "--no-pdf", "-o", str(out)])
     assert code == 2                                   # the worst of 0, 0, 2
     captured = capsys.readouterr()
     assert json.loads((out / "T-LIM-001_revA.json").read_text())["passed"] is True
@@ -34,12 +34,12 @@ def test_exit_code_is_the_worst_of_the_jobs(tmp_path, capsys):
     failing = "limits:\n  - {quantity: pressure, max: 200 kPa, basis: common practice}\n"
     a = write(tmp_path, "a.yaml", ideal_job())
     b = write(tmp_path, "b.yaml", ideal_job(failing, revision="B"))
-    assert cli.main(["run", str(a), str(b), "--no-pdf", "-o", str(tmp_path / "out")]) == 1
+    assert calcdoc.main(["run", str(a), str(b), "--no-pdf", "-o", str(tmp_path / "out")]) == 1
     assert "1 of 1 checks FAIL" in capsys.readouterr().out
 
 
 def test_an_empty_folder_is_bad_input(tmp_path, capsys):
-    assert cli.main(["run", str(tmp_path), "--no-pdf", "-o", str(tmp_path / "out")]) == 2
+    assert calcdoc.main(["run", str(tmp_path), "--no-pdf", "-o", str(tmp_path / "out")]) == 2
     assert "no job files" in capsys.readouterr().err
 
 
@@ -47,7 +47,7 @@ def test_two_jobs_with_the_same_calc_number_and_revision_are_not_both_written(tm
     a = write(tmp_path, "a.yaml", ideal_job())
     b = write(tmp_path, "b.yaml", ideal_job(P1="120 kPa"))          # same calc number and revision as a
     out = tmp_path / "out"
-    assert cli.main(["run", str(a), str(b), "--no-pdf", "-o", str(out)]) == 2
+    assert calcdoc.main(["run", str(a), str(b), "--no-pdf", "-o", str(out)]) == 2
     err = capsys.readouterr().err
     assert f"{b}: calc T-LIM-001 rev A is also {a}" in err      # the later job in file order is refused
     # the report of a stands, not overwritten by b

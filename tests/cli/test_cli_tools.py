@@ -10,7 +10,7 @@ import pytest
 import yaml
 from _limits_helpers import ideal_job
 
-from calcdoc import cli
+import calcdoc
 from calcdoc.engine import run
 from calcdoc.errors import JobError
 from calcdoc.job import jobfile, loads
@@ -39,7 +39,7 @@ def validator():
 
 
 def test_schema_command_prints_the_schema(capsys):
-    assert cli.main(["schema"]) == 0
+    assert calcdoc.main(["schema"]) == 0
     assert json.loads(capsys.readouterr().out) == job_schema()
 
 
@@ -79,9 +79,9 @@ def test_schema_keys_follow_the_validator():
 @pytest.mark.parametrize("system", ["closed", "flow", "vessel", "reciprocating"])
 def test_new_writes_a_starter_that_passes_check(tmp_path, capsys, system):
     path = tmp_path / f"{system}.yaml"
-    assert cli.main(["new", "--system", system, str(path)]) == 0
-    assert cli.main(["check", str(path)]) == 0
-    assert cli.main(["new", "--system", system, str(path)]) == 2        # no silent overwrite
+    assert calcdoc.main(["new", "--system", system, str(path)]) == 0
+    assert calcdoc.main(["check", str(path)]) == 0
+    assert calcdoc.main(["new", "--system", system, str(path)]) == 2        # no silent overwrite
     assert "exists" in capsys.readouterr().err
     assert path.read_text(encoding="utf-8").count("#") > 10             # it is commented
 

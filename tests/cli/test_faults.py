@@ -12,7 +12,7 @@ from pathlib import Path
 
 import pytest
 
-from calcdoc import cli
+import calcdoc
 
 JOB = """calcdoc: 1
 calc:
@@ -57,7 +57,7 @@ def earlier_report(tmp_path_factory):
     base = tmp_path_factory.mktemp("earlier")
     job = _job(base)
     out = base / "out"
-    assert cli.main(["run", str(job), "--out", str(out), "--quiet"]) == 0
+    assert calcdoc.main(["run", str(job), "--out", str(out), "--quiet"]) == 0
     assert sorted(p.name for p in out.iterdir()) == ["DEMO-101-C-001_revA.json", "DEMO-101-C-001_revA.pdf"]
     return base, out, _snapshot(out)
 
@@ -75,7 +75,7 @@ def _fresh_copy(earlier, tmp_path) -> Path:
 def test_bad_revision_of_the_same_job_leaves_the_earlier_report_untouched(earlier_report, tmp_path, capsys):
     out = _fresh_copy(earlier_report, tmp_path)
     bad = _job(tmp_path, n="0")          # n = 0 cannot reach an end pressure: fails in the engine
-    assert cli.main(["run", str(bad), "--out", str(out)]) == 2
+    assert calcdoc.main(["run", str(bad), "--out", str(out)]) == 2
     assert _snapshot(out) == earlier_report[2]
     assert "legs[0].end.pressure" in capsys.readouterr().err
 
@@ -89,7 +89,7 @@ def test_failure_while_rendering_the_pdf_leaves_both_files_untouched(earlier_rep
 
     monkeypatch.setattr("calcdoc.report.output.render_pdf", broken_render)
     job = _job(tmp_path, title="Receiver fill, revised")
-    assert cli.main(["run", str(job), "--out", str(out)]) == 3
+    assert calcdoc.main(["run", str(job), "--out", str(out)]) == 3
     assert _snapshot(out) == earlier_report[2], "the new JSON must not be written beside the old PDF"
     capsys.readouterr()
 
@@ -109,7 +109,7 @@ def test_disk_full_while_writing_leaves_no_partial_file_and_old_outputs(earlier_
 
     monkeypatch.setattr(os, "fsync", fsync_fails_second_time)
     job = _job(tmp_path, title="Receiver fill, revised")
-    code = cli.main(["run", str(job), "--out", str(out)])
+    code = calcdoc.main(["run", str(job), "--out", str(out)])
     err = capsys.readouterr().err
     assert code == 2 and "No space left on device" in err and "Traceback" not in err
     assert _snapshot(out) == earlier_report[2]       # no .part files, old JSON and PDF as they were
@@ -121,7 +121,7 @@ def test_a_job_file_is_never_overwritten(tmp_path, capsys):
     # a job written in JSON (which is YAML) and saved under the name its results would take
     job = _job(out, name="DEMO-101-C-001_revA.json")
     before = job.read_bytes()
-    assert cli.main(["run", str(job), "--out", str(out), "--no-pdf"]) == 2
+    assert calcdoc.main(["run", str(job), "--out", str(out), "--no-pdf"]) == 2
     assert job.read_bytes() == before
     assert "refusing to overwrite the job file" in capsys.readouterr().err
     assert [p.name for p in out.iterdir()] == [job.name]
@@ -137,7 +137,7 @@ def test_names_from_calc_numbers_stay_inside_the_output_folder(tmp_path, number,
     job.write_text(JOB.format(number=f"'{number}'", title="x", revision=f"'{revision}'", n="1.3")
                    .replace("\x00", "\\0").replace("'CON:\\0?*'", '"CON:\\0?*"'), encoding="utf-8")
     out = work / "out"
-    code = cli.main(["run", str(job), "--out", str(out), "--no-pdf", "--quiet"])
+    code = calcdoc.main(["run", str(job), "--out", str(out), "--no-pdf", "--quiet"])
     assert code == 0, capsys.readouterr().err
     written = [p for p in root.rglob("*") if p.is_file() and p != job]
     assert written and all(p.parent == out for p in written)
@@ -151,13 +151,13 @@ def test_internal_error_is_one_line_and_the_traceback_goes_to_the_log_only_with_
     monkeypatch.setattr("calcdoc.engine.closed.closed_leg", broken_leg)
     job = _job(tmp_path)
     out = tmp_path / "out"
-    assert cli.main(["run", str(job), "--out", str(out)]) == 3
+    assert calcdoc.main(["run", str(job), "--out", str(out)]) == 3
     err = capsys.readouterr().err
     assert err.count("\n") == 1 and "internal error" in err and "please report it" in err
     assert "Traceback" not in err and "ZeroDivisionError" not in err
     assert not (out / "calcdoc-debug.log").exists()
 
-    assert cli.main(["run", str(job), "--out", str(out), "--debug"]) == 3
+    assert calcdoc.main(["run", str(job), "--out", str(out), "--debug"]) == 3
     err = capsys.readouterr().err
     assert err.count("\n") == 1 and "Traceback" not in err
     log = (out / "calcdoc-debug.log").read_text(encoding="utf-8")
@@ -170,7 +170,7 @@ def test_internal_error_while_checking_is_one_line(tmp_path, monkeypatch, capsys
         raise KeyError("oops")
 
     monkeypatch.setattr("calcdoc.job.jobfile._Validator.job", broken)
-    assert cli.main(["check", str(_job(tmp_path))]) == 3
+    assert calcdoc.main(["check", str(_job(tmp_path))]) == 3
     err = capsys.readouterr().err
     assert err.count("\n") == 1 and "internal error" in err and "Traceback" not in err
 

@@ -12,7 +12,7 @@ from pathlib import Path
 import pytest
 from pypdf import PdfReader, PdfWriter
 
-from calcdoc import cli
+import calcdoc
 from calcdoc.report import charts
 from calcdoc.report.output import JOURNAL_SUFFIX, clean_folder
 
@@ -28,7 +28,7 @@ legs:
 
 
 def _main(capsys, *argv: str) -> tuple[int, str]:
-    code = cli.main(list(argv))
+    code = calcdoc.main(list(argv))
     err = capsys.readouterr().err
     assert "Traceback" not in err
     return code, err
@@ -81,7 +81,7 @@ def test_batch_list_with_a_named_pipe_runs_the_others(tmp_path, job, capsys):
     os.mkfifo(fifo)
     other = tmp_path / "other.yaml"
     other.write_text(JOB.replace("H-1", "H-2"), encoding="utf-8")
-    code = cli.main(["run", str(fifo), str(job), str(other), "--out", str(tmp_path / "o"), "--no-pdf", "-j", "1"])
+    code = calcdoc.main(["run", str(fifo), str(job), str(other), "--out", str(tmp_path / "o"), "--no-pdf", "-j", "1"])
     err = capsys.readouterr().err
     assert code == 2 and "named pipe" in err and "Traceback" not in err
     assert sorted(p.name for p in (tmp_path / "o").iterdir()) == ["H-1_revA.json", "H-2_revA.json"]
@@ -137,13 +137,13 @@ def test_verify_rerun_internal_error_is_one_line_exit_3(report, capsys, monkeypa
 def test_verify_detects_a_mixed_pair(report, tmp_path, capsys, job):
     json_path = report.with_suffix(".json")
     json_path.write_text(json_path.read_text(encoding="utf-8").replace('"H-1"', '"H-1" ', 1), encoding="utf-8")
-    code = cli.main(["verify", str(report)])
+    code = calcdoc.main(["verify", str(report)])
     out = capsys.readouterr().out
     assert code == 1 and "is NOT the one attached" in out
 
 
 def test_verify_says_the_json_beside_belongs(report, capsys):
-    code = cli.main(["verify", str(report)])
+    code = calcdoc.main(["verify", str(report)])
     assert code == 0 and "is the one attached to it" in capsys.readouterr().out
 
 

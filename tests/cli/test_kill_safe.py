@@ -12,7 +12,7 @@ from pathlib import Path
 
 import pytest
 
-from calcdoc import cli
+import calcdoc
 
 ROOT = Path(__file__).resolve().parents[2]
 JOB = ROOT / "example_jobs" / "gas_booster_two_stage.yaml"   # a real-gas flow job: a few seconds of work
@@ -28,7 +28,7 @@ def _pair_is_sound(out: Path, capsys) -> str:
         return "none"
     assert len(reports) == 2, names
     pdf = out / next(n for n in reports if n.endswith(".pdf"))
-    code = cli.main(["verify", str(pdf)])
+    code = calcdoc.main(["verify", str(pdf)])
     text = capsys.readouterr().out
     assert code == 0, text
     assert "is the one attached to it" in text

@@ -17,7 +17,6 @@ from cryptography.x509.oid import NameOID
 from pypdf import PdfReader
 
 import calcdoc
-from calcdoc import cli
 
 JOB = """calcdoc: 1
 calc: {number: SIG-001, title: Signed package, revision: A, date: 2026-11-30,
@@ -76,11 +75,11 @@ def signed(package, tmp_path_factory):
     mp = pytest.MonkeyPatch()
     mp.setenv("TEST_P12_PW", "test-pw")
     codes = [
-        cli.main(["sign", str(package["pdf"]), "--key", str(ids["alice"][0]), "--cert", str(ids["alice"][1]),
+        calcdoc.main(["sign", str(package["pdf"]), "--key", str(ids["alice"][0]), "--cert", str(ids["alice"][1]),
                   "--role", "prepared", "--out", str(s1)]),
-        cli.main(["sign", str(s1), "--key", str(ids["bob"][2]), "--passphrase-env", "TEST_P12_PW",
+        calcdoc.main(["sign", str(s1), "--key", str(ids["bob"][2]), "--passphrase-env", "TEST_P12_PW",
                   "--role", "checked", "--out", str(s2)]),
-        cli.main(["sign", str(s2), "--key", str(ids["carol"][0]), "--cert", str(ids["carol"][1]),
+        calcdoc.main(["sign", str(s2), "--key", str(ids["carol"][0]), "--cert", str(ids["carol"][1]),
                   "--role", "approved", "--out", str(s3)]),
     ]
     mp.undo()
@@ -130,7 +129,7 @@ def test_pypdf_reads_the_signature_fields_in_the_title_block(signed):
 
 
 def test_calcdoc_verify_lists_every_signature_and_keeps_the_attachment_checks(signed, capsys):
-    code = cli.main(["verify", str(signed["s3"])] + sum((["--trust", t] for t in signed["trust"]), []))
+    code = calcdoc.main(["verify", str(signed["s3"])] + sum((["--trust", t] for t in signed["trust"]), []))
     out = capsys.readouterr().out
     assert code == 0, out
     assert out.count("ok: signature") == 3 and "NOT VERIFIED" not in out
@@ -141,10 +140,10 @@ def test_calcdoc_verify_lists_every_signature_and_keeps_the_attachment_checks(si
 
 
 def test_an_untrusted_signer_fails_verify(signed, package, capsys):
-    code = cli.main(["verify", str(signed["s2"]), "--trust", str(package["ids"]["mallory"][1])])
+    code = calcdoc.main(["verify", str(signed["s2"]), "--trust", str(package["ids"]["mallory"][1])])
     captured = capsys.readouterr()
     assert code == 1 and "signer NOT trusted" in captured.out and "Traceback" not in captured.err + captured.out
-    assert cli.main(["verify", str(signed["s1"])]) == 1      # no trust list given: not trusted
+    assert calcdoc.main(["verify", str(signed["s1"])]) == 1      # no trust list given: not trusted
     assert "no --trust certificate given" in capsys.readouterr().out
 
 
@@ -164,7 +163,7 @@ def test_one_byte_changed_in_a_content_stream_fails(signed, tmp_path, capsys):
     bad.write_bytes(bytes(data))
     statuses = _pyhanko_statuses(bytes(data), signed["trust"])
     assert not all(st.intact for _, st in statuses)           # pyHanko: the signed bytes changed
-    code = cli.main(["verify", str(bad)] + sum((["--trust", t] for t in signed["trust"]), []))
+    code = calcdoc.main(["verify", str(bad)] + sum((["--trust", t] for t in signed["trust"]), []))
     captured = capsys.readouterr()
     assert code != 0
     assert "Traceback" not in captured.err + captured.out
@@ -183,18 +182,18 @@ def test_a_change_after_signing_is_found(signed, tmp_path, capsys):
     w.write(out)
     changed = tmp_path / "changed.pdf"
     changed.write_bytes(out.getvalue())
-    code = cli.main(["verify", str(changed)] + sum((["--trust", t] for t in signed["trust"]), []))
+    code = calcdoc.main(["verify", str(changed)] + sum((["--trust", t] for t in signed["trust"]), []))
     text = capsys.readouterr().out
     assert code == 1 and "CHANGED after this signature" in text
 
 
 def test_a_role_signs_once_and_bad_keys_are_exit_2(signed, package, tmp_path, capsys):
     ids = package["ids"]
-    code = cli.main(["sign", str(signed["s1"]), "--key", str(ids["alice"][0]), "--cert", str(ids["alice"][1]),
+    code = calcdoc.main(["sign", str(signed["s1"]), "--key", str(ids["alice"][0]), "--cert", str(ids["alice"][1]),
                      "--role", "prepared", "--out", str(tmp_path / "again.pdf")])
     err = capsys.readouterr().err
     assert code == 2 and "already signed as 'prepared'" in err and not (tmp_path / "again.pdf").exists()
-    code = cli.main(["sign", str(package["pdf"]), "--key", str(ids["alice"][1]), "--cert", str(ids["alice"][1]),
+    code = calcdoc.main(["sign", str(package["pdf"]), "--key", str(ids["alice"][1]), "--cert", str(ids["alice"][1]),
                      "--role", "checked", "--out", str(tmp_path / "x.pdf")])
     err = capsys.readouterr().err
     assert code == 2 and err.startswith("error:") and "Traceback" not in err

@@ -14,7 +14,8 @@ from pathlib import Path
 import pytest
 
 import calcdoc
-from calcdoc import cli, selftest
+from calcdoc import selftest
+from calcdoc.errors import EXIT_CHECK_FAILED, EXIT_OK
 from calcdoc.selftest import cases as _cases, reference as _reference
 
 TOPICS = _cases.load_all()
@@ -43,14 +44,14 @@ def test_case(case):
 @pytest.fixture(scope="module")
 def selftest_out(tmp_path_factory):
     out = tmp_path_factory.mktemp("selftest")
-    code = cli.main(["selftest", "--out", str(out), "--quiet"])
+    code = calcdoc.main(["selftest", "--out", str(out), "--quiet"])
     return code, out
 
 
 def test_selftest_passes_on_this_installation(selftest_out):
     code, out = selftest_out
     data = json.loads((out / "calcdoc-selftest.json").read_text(encoding="utf-8"))
-    assert code == cli.EXIT_OK
+    assert code == EXIT_OK
     assert data["verdict"] == "pass"
     assert data["summary"] == {"cases": len(CASES), "passed": len(CASES), "failed": 0, "errors": 0}
     assert [c["id"] for c in data["cases"]] == [c.id for c in CASES]
@@ -92,9 +93,9 @@ def test_breaking_an_engine_formula_fails_the_matching_cases(monkeypatch, tmp_pa
 
     good = processes.polytropic_work
     monkeypatch.setattr(processes, "polytropic_work", lambda P1V1, r, n: 1.001 * good(P1V1, r, n))
-    code = cli.main(["selftest", "--out", str(tmp_path), "--no-pdf", "--quiet"])
+    code = calcdoc.main(["selftest", "--out", str(tmp_path), "--no-pdf", "--quiet"])
     data = json.loads((tmp_path / "calcdoc-selftest.json").read_text(encoding="utf-8"))
-    assert code == cli.EXIT_CHECK_FAILED
+    assert code == EXIT_CHECK_FAILED
     assert data["verdict"] == "fail"
     failed = {c["id"] for c in data["cases"] if c["status"] != "pass"}
     # polytropic_work serves polytropic legs and the isothermal leg of an ideal gas

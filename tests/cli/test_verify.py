@@ -14,7 +14,7 @@ import pytest
 from pypdf import PdfReader, PdfWriter
 
 import calcdoc
-from calcdoc.cli import main
+from calcdoc import main
 from calcdoc.cli.verify import RERUN_RTOL, VerifyError, _compare, read_package, verify
 
 ROOT = Path(__file__).resolve().parents[2]

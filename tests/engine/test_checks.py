@@ -8,7 +8,7 @@ import math
 import pytest
 from _limits_helpers import ideal_job, write
 
-from calcdoc import cli
+import calcdoc
 from calcdoc.engine import run
 from calcdoc.errors import JobError
 from calcdoc.job import loads
@@ -157,10 +157,10 @@ def test_exit_codes_and_outputs_marked_not_passing(tmp_path, capsys):
     broken = write(tmp_path, "broken.yaml", ideal_job(limit("  - {quantity: power, max: 2 kW, basis: x}\n"),
                                                       revision="C"))
     out = tmp_path / "out"
-    assert cli.main(["run", str(ok), "--no-pdf", "-o", str(out), "-q"]) == 0
-    assert cli.main(["run", str(bad), "--no-pdf", "-o", str(out), "-q"]) == 1
+    assert calcdoc.main(["run", str(ok), "--no-pdf", "-o", str(out), "-q"]) == 0
+    assert calcdoc.main(["run", str(bad), "--no-pdf", "-o", str(out), "-q"]) == 1
     data = json.loads((out / "T-LIM-001_revB.json").read_text())
     assert data["passed"] is False and data["checks"][0]["status"] == "fail"
-    assert cli.main(["run", str(broken), "--no-pdf", "-o", str(out), "-q"]) == 2
+    assert calcdoc.main(["run", str(broken), "--no-pdf", "-o", str(out), "-q"]) == 2
     assert f"{broken}:" in capsys.readouterr().err
     assert not (out / "T-LIM-001_revC.json").exists()

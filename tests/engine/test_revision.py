@@ -6,7 +6,7 @@ import subprocess
 import pytest
 from _limits_helpers import ideal_job, write
 
-from calcdoc import cli
+import calcdoc
 from calcdoc.engine import run
 from calcdoc.engine.revision import compare, with_changes
 from calcdoc.job import loads
@@ -81,10 +81,10 @@ def test_diff_against_a_git_revision(tmp_path, capsys):
     subprocess.run([*git, "-C", str(tmp_path), "add", "job.yaml"], check=True)
     subprocess.run([*git, "-C", str(tmp_path), "commit", "-qm", "rev A"], check=True)
     job.write_text(ideal_job(P1="120 kPa", revision="B"), encoding="utf-8")
-    assert cli.main(["diff", str(job), "--against", "HEAD"]) == 0
+    assert calcdoc.main(["diff", str(job), "--against", "HEAD"]) == 0
     out = capsys.readouterr().out
     assert "start.pressure: 100 kPa → 120 kPa" in out and "calc.revision: A → B" in out
-    assert cli.main(["diff", str(job), "--against", "no-such-rev"]) == 2
+    assert calcdoc.main(["diff", str(job), "--against", "no-such-rev"]) == 2
 
 
 def test_run_changes_since_writes_the_comparison(tmp_path):
@@ -93,6 +93,6 @@ def test_run_changes_since_writes_the_comparison(tmp_path):
     old = write(tmp_path, "old.yaml", ideal_job())
     new = write(tmp_path, "new.yaml", ideal_job(P1="110 kPa", revision="B"))
     out = tmp_path / "out"
-    assert cli.main(["run", str(new), "--changes-since", str(old), "--no-pdf", "-o", str(out), "-q"]) == 0
+    assert calcdoc.main(["run", str(new), "--changes-since", str(old), "--no-pdf", "-o", str(out), "-q"]) == 0
     ch = json.loads((out / "T-LIM-001_revB.json").read_text())["changes_since"]
     assert ch["revision"] == "A" and [c["path"] for c in ch["inputs"]] == ["calc.revision", "start.pressure"]

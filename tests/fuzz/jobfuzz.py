@@ -184,14 +184,14 @@ def _alarm(signum, frame):
 
 def call(argv: list[str], cap: float) -> tuple[int | str, str]:
     """Run the command line in this process with a time cap: (exit code or 'timeout'/'crash', stderr)."""
-    from calcdoc import cli
+    import calcdoc
 
     err, out = io.StringIO(), io.StringIO()
     old = signal.signal(signal.SIGALRM, _alarm)
     signal.setitimer(signal.ITIMER_REAL, cap)
     try:
         with contextlib.redirect_stderr(err), contextlib.redirect_stdout(out):
-            code: int | str = cli.main(argv)
+            code: int | str = calcdoc.main(argv)
     except _Timeout:
         code = "timeout"
     except SystemExit as exc:   # argparse

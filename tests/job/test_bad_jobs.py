@@ -13,7 +13,7 @@ from pathlib import Path
 import pytest
 import yaml
 
-from calcdoc import cli
+import calcdoc
 
 HERE = Path(__file__).parent / "bad_jobs"
 CATALOGUE = yaml.safe_load((HERE / "catalogue.yaml").read_text(encoding="utf-8"))
@@ -52,7 +52,7 @@ def test_catalogue_lists_every_file_and_covers_enough_cases():
 def test_broken_job_exits_2_with_located_message(case, tmp_path, capsys):
     path = HERE / case["file"]
     out = tmp_path / "out"
-    code = cli.main(["run", str(path), "--out", str(out), "--no-pdf", "--quiet"])
+    code = calcdoc.main(["run", str(path), "--out", str(out), "--no-pdf", "--quiet"])
     err = capsys.readouterr().err
     assert code == 2, err
     assert "Traceback" not in err
@@ -68,7 +68,7 @@ def test_two_phase_path_gives_a_warning_not_a_silent_number(case, tmp_path, caps
     import json
 
     out = tmp_path / "out"
-    code = cli.main(["run", str(HERE / case["file"]), "--out", str(out), "--no-pdf"])
+    code = calcdoc.main(["run", str(HERE / case["file"]), "--out", str(out), "--no-pdf"])
     captured = capsys.readouterr()
     assert code == 0, captured.err
     assert case["warning"] in captured.out
@@ -114,7 +114,7 @@ def test_check_finds_every_load_stage_problem_without_computing(tmp_path):
 
 
 def test_several_independent_problems_are_reported_together(capsys, tmp_path):
-    code = cli.main(["check", str(HERE / "several_problems.yaml")])
+    code = calcdoc.main(["check", str(HERE / "several_problems.yaml")])
     err = capsys.readouterr().err
     assert code == 2
     # gauge without atmosphere (line 12), misspelt key (13), volume without unit (14): all in one run
@@ -127,15 +127,15 @@ def test_file_of_several_megabytes_is_refused_without_reading_it_all(tmp_path, c
     text = (HERE / "several_problems.yaml").read_text(encoding="utf-8")
     big.write_text(text + "# padding\n" * 400_000, encoding="utf-8")   # ~4 MB
     assert big.stat().st_size > 3_000_000
-    code = cli.main(["check", str(big)])
+    code = calcdoc.main(["check", str(big)])
     err = capsys.readouterr().err
     assert code == 2
     assert "larger than 1,000,000 bytes" in err and "Traceback" not in err
 
 
 def test_missing_file_and_folder_are_bad_input(tmp_path, capsys):
-    assert cli.main(["check", str(tmp_path / "nope.yaml")]) == 2
-    assert cli.main(["check", str(tmp_path)]) == 2
+    assert calcdoc.main(["check", str(tmp_path / "nope.yaml")]) == 2
+    assert calcdoc.main(["check", str(tmp_path)]) == 2
     err = capsys.readouterr().err
     assert "no such file" in err and "folder, not a job file" in err
 
@@ -143,7 +143,7 @@ def test_missing_file_and_folder_are_bad_input(tmp_path, capsys):
 def test_very_deep_nesting_is_refused_before_the_parser_recurses(tmp_path, capsys):
     deep = tmp_path / "deep.yaml"
     deep.write_text("calcdoc: 1\nassumptions: " + "[" * 50_000 + "]" * 50_000 + "\n", encoding="utf-8")
-    assert cli.main(["check", str(deep)]) == 2
+    assert calcdoc.main(["check", str(deep)]) == 2
     err = capsys.readouterr().err
     assert f"{deep}:2:" in err and "nested more than 40 levels" in err
 

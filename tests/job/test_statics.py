@@ -3,7 +3,7 @@
 (tests/job/bad_jobs); the warnings and the `diff` warning are tested here."""
 from __future__ import annotations
 
-from calcdoc import cli
+import calcdoc
 
 FLOW = """calcdoc: 1
 calc:
@@ -33,7 +33,7 @@ def _write(tmp_path, name="job.yaml", **kw):
 
 
 def test_a_clean_job_has_no_warning(tmp_path, capsys):
-    assert cli.main(["check", str(_write(tmp_path))]) == 0
+    assert calcdoc.main(["check", str(_write(tmp_path))]) == 0
     captured = capsys.readouterr()
     assert "warning" not in captured.err and "OK" in captured.out
 
@@ -41,17 +41,17 @@ def test_a_clean_job_has_no_warning(tmp_path, capsys):
 def test_a_large_intercooler_drop_is_a_warning_at_its_line(tmp_path, capsys):
     # 2 bar of 6 bar at the intercooler inlet is 33 %, above the 30 % that usual intercoolers never reach
     path = _write(tmp_path, drop="2 bar")
-    assert cli.main(["check", str(path)]) == 0
+    assert calcdoc.main(["check", str(path)]) == 0
     err = capsys.readouterr().err
     assert f"warning: {path}:16:5: legs[1].pressure_drop:" in err and "more than 30 %" in err
     # just under 30 % (1.7 bar of 6 bar): no warning
-    assert cli.main(["check", str(_write(tmp_path, drop="1.7 bar"))]) == 0
+    assert calcdoc.main(["check", str(_write(tmp_path, drop="1.7 bar"))]) == 0
     assert "warning" not in capsys.readouterr().err
 
 
 def test_a_revision_missing_from_the_history_is_a_warning(tmp_path, capsys):
     path = _write(tmp_path, rev="B")
-    assert cli.main(["check", str(path)]) == 0
+    assert calcdoc.main(["check", str(path)]) == 0
     err = capsys.readouterr().err
     assert f"warning: {path}:5:3: calc.revision: revision B is not in the history table" in err
 
@@ -61,9 +61,9 @@ def test_run_of_a_job_with_a_static_problem_exits_2_and_writes_nothing(tmp_path,
     path.write_text(FLOW.format(rev="A", drop="0.1 bar").replace("end: {pressure: 12 bar}", "end: {pressure: 5 bar}"),
                     encoding="utf-8")
     out = tmp_path / "out"
-    assert cli.main(["check", str(path)]) == 2
+    assert calcdoc.main(["check", str(path)]) == 2
     check_err = capsys.readouterr().err
-    assert cli.main(["run", str(path), "--out", str(out)]) == 2
+    assert calcdoc.main(["run", str(path), "--out", str(out)]) == 2
     run_err = capsys.readouterr().err
     line = f"error: {path}:18:"
     assert line in check_err and line in run_err and "is not above its start" in run_err
@@ -74,10 +74,10 @@ def test_diff_of_different_calc_numbers_warns(tmp_path, capsys):
     a = _write(tmp_path, "a.yaml")
     b = tmp_path / "b.yaml"
     b.write_text(a.read_text(encoding="utf-8").replace("S-001", "S-002"), encoding="utf-8")
-    assert cli.main(["diff", str(a), str(b)]) == 0
+    assert calcdoc.main(["diff", str(a), str(b)]) == 0
     err = capsys.readouterr().err
     assert "warning:" in err and "S-001" in err and "S-002" in err and "different calculations" in err
-    assert cli.main(["diff", str(a), str(a)]) == 0
+    assert calcdoc.main(["diff", str(a), str(a)]) == 0
     assert "warning" not in capsys.readouterr().err
 
 

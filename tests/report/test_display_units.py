@@ -9,7 +9,8 @@ import re
 import pytest
 from pypdf import PdfReader
 
-from calcdoc import cli, units
+import calcdoc
+from calcdoc import units
 from calcdoc.engine import run
 from calcdoc.errors import JobError
 from calcdoc.job import loads
@@ -89,7 +90,7 @@ def test_every_number_in_summary_results_and_checks_carries_the_chosen_unit():
 def test_terminal_lines_follow_the_job(tmp_path, capsys):
     path = tmp_path / "job.yaml"
     path.write_text(JOB.format(units=OWN), encoding="utf-8")
-    code = cli.main(["run", str(path), "--out", str(tmp_path / "out"), "--no-pdf"])
+    code = calcdoc.main(["run", str(path), "--out", str(tmp_path / "out"), "--no-pdf"])
     out = capsys.readouterr().out
     assert code == 1, out       # the discharge check fails
     line = next(ln for ln in out.splitlines() if "check Discharge" in ln)
