@@ -618,8 +618,10 @@ def i17_watch(tmp: Path) -> None:
     job.write_text(REAL_JOB)
     out = tmp / "w"
     err = open(tmp / "watch-stderr.txt", "w")   # read back should the watcher not end
+    # SIGINT as from a terminal, even when this bench runs in the background (where the shell ignores it)
     p = subprocess.Popen([PY, "-m", "calcdoc", "watch", str(job), "--out", str(out), "--interval", "0.1"],
-                         stdout=subprocess.PIPE, stderr=err, text=True)
+                         stdout=subprocess.PIPE, stderr=err, text=True,
+                         preexec_fn=lambda: signal.signal(signal.SIGINT, signal.SIG_DFL))
 
     def built() -> float:
         for line in p.stdout:

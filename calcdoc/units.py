@@ -154,6 +154,90 @@ _FAST_T: dict[str, tuple[float, float]] = {"K": (1.0, 0.0), "degC": (1.0, 273.15
                                           "degF": (0.5555555555555556, 255.37222222222223)}
 
 
+#: Display conversions without pint, for every unit the SI and US systems, the trade flavours and the
+#: common units above show: (SI unit, display unit) → (scale, offset), value = value_si·scale + offset,
+#: computed once with pint by :func:`_factor`'s own formula, so a report shows the very floats pint gives
+#: (tests/job/test_unit_fast.py compares every entry with pint). A job's other units go through pint.
+_FAST_DISPLAY: dict[tuple[str, str], tuple[float, float]] = {
+    ('J', 'Btu_it'): (0.0009478171203133171, 0.0),
+    ('J', 'MJ'): (1e-06, 0.0),
+    ('J', 'kJ'): (0.001, 0.0),
+    ('J/(kg*K)', 'Btu_it/(lb*degR)'): (0.00023884589662749594, 0.0),
+    ('J/(kg*K)', 'kJ/(kg*K)'): (0.001, 0.0),
+    ('J/K', 'Btu_it/degR'): (0.0005265650668407318, 0.0),
+    ('J/K', 'kJ/K'): (0.001, 0.0),
+    ('J/kg', 'Btu_it/lb'): (0.0004299226139294927, 0.0),
+    ('J/kg', 'MJ/kg'): (1e-06, 0.0),
+    ('J/kg', 'ft*lbf/lb'): (0.3345525633129686, 0.0),
+    ('J/kg', 'kJ/kg'): (0.001, 0.0),
+    ('K', 'degC'): (1.0, -273.15),
+    ('K', 'degF'): (1.8000000000000114, -459.67),
+    ('K', 'degR'): (1.7999999999999998, 0.0),
+    ('K', 'delta_degF'): (1.7999999999999998, 0.0),
+    ('N', 'kN'): (0.001, 0.0),
+    ('N', 'lbf'): (0.22480894309971053, 0.0),
+    ('Pa', 'MPa'): (1e-06, 0.0),
+    ('Pa', 'atm'): (9.869232667160129e-06, 0.0),
+    ('Pa', 'bar'): (1e-05, 0.0),
+    ('Pa', 'hPa'): (0.01, 0.0),
+    ('Pa', 'kPa'): (0.001, 0.0),
+    ('Pa', 'mbar'): (0.01, 0.0),
+    ('Pa', 'psi'): (0.0001450377377302092, 0.0),
+    ('W', 'Btu/hour'): (3.412141156488376, 0.0),
+    ('W', 'MW'): (1e-06, 0.0),
+    ('W', 'hp'): (0.0013410220895950279, 0.0),
+    ('W', 'kW'): (0.001, 0.0),
+    ('W/(m**2*K)', 'Btu_it/(hour*ft**2*degR)'): (0.17611018368230585, 0.0),
+    ('kg', 'g'): (1000.0, 0.0),
+    ('kg', 'lb'): (2.2046226218487757, 0.0),
+    ('kg', 't'): (0.001, 0.0),
+    ('kg/m**3', 'lb/ft**3'): (0.062427960576144616, 0.0),
+    ('kg/mol', 'g/mol'): (1000.0, 0.0),
+    ('kg/mol', 'kg/kmol'): (1000.0, 0.0),
+    ('kg/mol', 'lb/lbmol'): (1000.0, 0.0),
+    ('kg/s', 'kg/hour'): (3600.0, 0.0),
+    ('kg/s', 'kg/min'): (60.0, 0.0),
+    ('kg/s', 'lb/hour'): (7936.641438655593, 0.0),
+    ('kg/s', 'lb/min'): (132.27735731092656, 0.0),
+    ('kg/s', 'lb/s'): (2.2046226218487757, 0.0),
+    ('kg/s', 't/hour'): (3.6, 0.0),
+    ('m', 'cm'): (100.0, 0.0),
+    ('m', 'ft'): (3.2808398950131235, 0.0),
+    ('m', 'inch'): (39.37007874015748, 0.0),
+    ('m', 'km'): (0.001, 0.0),
+    ('m', 'mm'): (1000.0, 0.0),
+    ('m**2', 'cm**2'): (10000.0, 0.0),
+    ('m**2', 'ft**2'): (10.763910416709724, 0.0),
+    ('m**2', 'in**2'): (1550.0031000062002, 0.0),
+    ('m**2', 'mm**2'): (1000000.0, 0.0),
+    ('m**3', 'L'): (999.9999999999999, 0.0),
+    ('m**3', 'cm**3'): (999999.9999999999, 0.0),
+    ('m**3', 'ft**3'): (35.3146667214886, 0.0),
+    ('m**3', 'gallon'): (264.1720523581485, 0.0),
+    ('m**3', 'in**3'): (61023.7440947323, 0.0),
+    ('m**3', 'liter'): (999.9999999999999, 0.0),
+    ('m**3', 'mm**3'): (999999999.9999999, 0.0),
+    ('m**3/kg', 'ft**3/lb'): (16.018463373960145, 0.0),
+    ('m**3/s', 'ft**3/day'): (3051187.204736615, 0.0),
+    ('m**3/s', 'ft**3/hour'): (127132.80019735896, 0.0),
+    ('m**3/s', 'ft**3/min'): (2118.880003289316, 0.0),
+    ('m**3/s', 'liter/min'): (59999.99999999999, 0.0),
+    ('m**3/s', 'liter/s'): (999.9999999999999, 0.0),
+    ('m**3/s', 'm**3/day'): (86400.0, 0.0),
+    ('m**3/s', 'm**3/h'): (3600.0, 0.0),
+    ('m**3/s', 'm**3/hour'): (3600.0, 0.0),
+    ('m**3/s', 'm**3/min'): (60.0, 0.0),
+    ('mol/s', 'kmol/h'): (3.6, 0.0),
+    ('mol/s', 'kmol/hour'): (3.6, 0.0),
+    ('mol/s', 'kmol/s'): (0.001, 0.0),
+    ('mol/s', 'lbmol/hour'): (7.9366414386555935, 0.0),
+    ('mol/s', 'mol/hour'): (3600.0, 0.0),
+    ('s', 'hour'): (0.0002777777777777778, 0.0),
+    ('s', 'min'): (0.016666666666666666, 0.0),
+    ('s', 'ms'): (1000.0, 0.0),
+}
+
+
 def is_gauge_text(text: str) -> bool:
     """Whether a pressure as written carries a gauge marker (barg, psig, bar(g), ...)."""
     m = _NUMBER.match(text)
@@ -630,9 +714,12 @@ def pretty_unit(unit: str) -> str:
 @lru_cache(maxsize=256)
 def _factor(si_unit: str, unit: str) -> tuple[float, float]:
     """Scale and offset with value_unit = scale * value_si + offset."""
-    ureg = registry()
     if si_unit == unit or si_unit == "":
         return 1.0, 0.0
+    fast = _FAST_DISPLAY.get((si_unit, unit))
+    if fast is not None:
+        return fast
+    ureg = registry()
     a = ureg.Quantity(0.0, si_unit).to(unit).magnitude
     b = ureg.Quantity(1.0, si_unit).to(unit).magnitude
     return b - a, a

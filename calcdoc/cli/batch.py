@@ -242,7 +242,9 @@ def summary_table(outcomes: list[Outcome]) -> str:
         checks = ""
         if "checks" in i and i["checks"]:
             failed = i["failed"]
-            checks = f"{i['checks']} checks pass" if not failed else f"{failed} of {i['checks']} checks FAIL"
+            n = i["checks"]
+            checks = ((f"{n} checks pass" if n > 1 else "1 check passes") if not failed
+                      else f"{failed} of {n} check{'s' if n > 1 else ''} FAIL{'S' if failed == 1 and n == 1 else ''}")
         elif "checks" in i:
             checks = "no limits"
         rows.append((STATUS.get(o.code, f"exit {o.code}"), o.path, calc, checks, i.get("written", [""])[-1]))

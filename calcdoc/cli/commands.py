@@ -52,7 +52,7 @@ def command(args) -> int:
             print(f"error: --interval {args.interval:g}: give a time in seconds above 0, for example 0.5",
                   file=sys.stderr)
             return EXIT_BAD_INPUT
-        return watch(args.job, args, interval=args.interval)
+        return _as_ctrl_c_on_sigterm(lambda: watch(args.job, args, interval=args.interval))
     return _run(args)
 
 
@@ -127,11 +127,17 @@ def _interrupt(signum, frame):
 def _run(args) -> int:
     """``calcdoc run``: SIGTERM is met as Ctrl-C is (the job in progress writes nothing and removes its
     temporary files); a batch stops its workers (see :func:`run_batch`)."""
+    return _as_ctrl_c_on_sigterm(lambda: _run_jobs(args))
+
+
+def _as_ctrl_c_on_sigterm(work) -> int:
+    """``work()``, with SIGTERM met as Ctrl-C is (``run`` and ``watch``: a build in progress writes nothing,
+    the last good report stays, exit code 130)."""
     if threading.current_thread() is not threading.main_thread():
-        return _run_jobs(args)
+        return work()
     old = signal.signal(signal.SIGTERM, _interrupt)
     try:
-        return _run_jobs(args)
+        return work()
     finally:
         signal.signal(signal.SIGTERM, old)
 

@@ -112,12 +112,20 @@ def breakable(value):
     return _LONG_RUN.sub(cut, value)
 
 
+@lru_cache(maxsize=1)
 def _env():
+    """One Jinja2 environment per process, so a rebuild in ``calcdoc watch`` or a batch worker's next job
+    does not compile the templates again (~0.25 s); its loader still reloads a template whose file changed.
+    The compiled templates are also kept in the user's cache (Jinja2's own bytecode cache, keyed by each
+    template's source checksum and the Jinja2 and Python versions; written atomically), so a cold run loads
+    them rather than compiling. The HTML is the same either way (tests/report/test_render_cache.py)."""
     import jinja2
 
+    folder = units.cache_dir("templates")
     env = jinja2.Environment(loader=jinja2.FileSystemLoader(str(templates_dir())),
                              autoescape=True, undefined=jinja2.StrictUndefined,
-                             trim_blocks=True, lstrip_blocks=True, finalize=breakable)
+                             trim_blocks=True, lstrip_blocks=True, finalize=breakable,
+                             bytecode_cache=jinja2.FileSystemBytecodeCache(str(folder)) if folder else None)
     env.filters.update(num=fmt.num, refs=fmt.refs, qty=fmt.qty, unit_of=fmt.unit_of, value_in=fmt.value_in,
                        symbol=fmt.symbol, eq=fmt.equation, result_si=fmt.result_si,
                        css_string=fmt.css_string, flavour=fmt.flavour, subscripts=fmt.subscripts,

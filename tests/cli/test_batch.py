@@ -35,7 +35,7 @@ def test_exit_code_is_the_worst_of_the_jobs(tmp_path, capsys):
     a = write(tmp_path, "a.yaml", ideal_job())
     b = write(tmp_path, "b.yaml", ideal_job(failing, revision="B"))
     assert calcdoc.main(["run", str(a), str(b), "--no-pdf", "-o", str(tmp_path / "out")]) == 1
-    assert "1 of 1 checks FAIL" in capsys.readouterr().out
+    assert "1 of 1 check FAILS" in capsys.readouterr().out
 
 
 def test_an_empty_folder_is_bad_input(tmp_path, capsys):

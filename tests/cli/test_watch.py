@@ -47,7 +47,8 @@ def test_watch_rebuilds_on_change_and_ends_on_ctrl_c(tmp_path):
     job.write_text(JOB.replace("VR", "0.5"))
     out = tmp_path / "out"
     p = subprocess.Popen([sys.executable, "-m", "calcdoc", "watch", str(job), "-o", str(out), "--no-pdf",
-                          "--interval", "0.1"], stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True)
+                          "--interval", "0.1"], stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True,
+                         preexec_fn=_ctrl_c_as_from_a_terminal)
     qo, qe = queue.Queue(), queue.Queue()
     readers = [threading.Thread(target=_lines, args=(p.stdout, qo), daemon=True),
                threading.Thread(target=_lines, args=(p.stderr, qe), daemon=True)]
@@ -90,6 +91,36 @@ def test_watch_rebuilds_on_change_and_ends_on_ctrl_c(tmp_path):
         p.stderr.close()
     assert code == 130
     assert any("stopped watching" in line for line in _drain(qe))
+
+
+def _ctrl_c_as_from_a_terminal():
+    # a shell running the suite in the background ignores SIGINT for its children, and Python then keeps it so
+    signal.signal(signal.SIGINT, signal.SIG_DFL)
+
+
+def test_watch_ends_on_sigterm_as_on_ctrl_c(tmp_path):
+    job = tmp_path / "w.yaml"
+    job.write_text(JOB.replace("VR", "0.5"))
+    p = subprocess.Popen([sys.executable, "-m", "calcdoc", "watch", str(job), "-o", str(tmp_path / "out"),
+                          "--no-pdf", "--interval", "0.1"], stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True)
+    qo = queue.Queue()
+    reader = threading.Thread(target=_lines, args=(p.stdout, qo), daemon=True)
+    reader.start()
+    try:
+        _wait_for(qo, "built in")
+    finally:
+        p.send_signal(signal.SIGTERM)
+        try:
+            code = p.wait(timeout=30)
+        except subprocess.TimeoutExpired:
+            p.kill()
+            raise
+        reader.join(timeout=10)
+        err = p.stderr.read()
+        p.stdout.close()
+        p.stderr.close()
+    assert code == 130 and "stopped watching" in err
+    assert (tmp_path / "out" / "W-1_revA.json").is_file()
 
 
 def _drain(q):

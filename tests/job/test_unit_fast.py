@@ -31,6 +31,24 @@ def test_table_factor_is_pints(ureg, unit, si):
         assert x * f == ureg.Quantity(x, unit).to(si).magnitude     # bit for bit
 
 
+@pytest.mark.parametrize("si, unit", sorted(units._FAST_DISPLAY))
+def test_display_table_is_what_pint_gives(si, unit):
+    ureg = units.registry()          # the registry the report would otherwise convert with
+    a = ureg.Quantity(0.0, si).to(unit).magnitude
+    b = ureg.Quantity(1.0, si).to(unit).magnitude
+    assert units._FAST_DISPLAY[(si, unit)] == (b - a, a)     # bit for bit, by _factor's own formula
+    for x in VALUES:                 # and a display from the table is pint's conversion to the last bits
+        assert units.convert(x, si, unit) == pytest.approx(ureg.Quantity(x, si).to(unit).magnitude, rel=1e-12, abs=1e-9)
+
+
+def test_every_unit_of_the_base_systems_displays_without_pint():
+    for system in units._SYSTEMS.values():
+        for si, unit in system.items():
+            assert si in ("", unit) or (si, unit) in units._FAST_DISPLAY, (si, unit)
+    for (si, _), unit in units._FLAVOURS.items():
+        assert (si.split("|")[0], unit) in units._FAST_DISPLAY
+
+
 @pytest.mark.parametrize("unit", sorted(units._FAST_T))
 def test_absolute_temperatures_are_pints(ureg, unit):
     scale, offset = units._FAST_T[unit]
