@@ -11,6 +11,7 @@ ends it with exit code 130.
 """
 from __future__ import annotations
 
+import gc
 import hashlib
 import os
 import sys
@@ -46,6 +47,7 @@ def watch(path: str, args, interval: float = 0.5, builds: int | None = None) -> 
     done = 0
     code = 0
     missing_said = False
+    threshold = gc.get_threshold()
     try:
         while builds is None or done < builds:
             now = _stat(path)
@@ -68,6 +70,8 @@ def watch(path: str, args, interval: float = 0.5, builds: int | None = None) -> 
                     t0 = time.perf_counter()
                     code = run_one(path, args)
                     done += 1
+                    if done == 1:
+                        _settle()
                     if code == 130:            # Ctrl-C during the build (run_one caught it)
                         raise KeyboardInterrupt
                     say(f"[{time.strftime('%H:%M:%S')}] built in {time.perf_counter() - t0:.2f} s "
@@ -77,4 +81,18 @@ def watch(path: str, args, interval: float = 0.5, builds: int | None = None) -> 
     except KeyboardInterrupt:
         print("stopped watching", file=sys.stderr, flush=True)
         return 130
+    finally:
+        gc.unfreeze()   # back to the ordinary collector, so the libraries are torn down as usual at exit
+        gc.set_threshold(*threshold)
     return code
+
+
+def _settle() -> None:
+    """After the first build: what the libraries loaded (fluid data, fonts, compiled templates, pint) lives
+    as long as the process, so it is moved out of the garbage collector's sight (``gc.freeze``, after a
+    collection so that no garbage is kept), and the collector runs less often. A rebuild allocates and
+    drops many small objects (WeasyPrint's boxes); with the loaded libraries no longer scanned at each
+    full collection, a rebuild takes ~20 % less time (bench/README.md). The results are the same."""
+    gc.collect()
+    gc.freeze()
+    gc.set_threshold(50_000, 20, 100)
