@@ -295,10 +295,68 @@ class _Fetcher:
         return cls._cls(allowed_protocols=("file", "data"), allow_redirects=False, fail_on_errors=True)
 
 
+#: WeasyPrint's user-agent style sheet styles ::marker and the five footnote and note pseudo-elements for every
+#: element (``::marker {...}``, ``::footnote-call {...}``, ...), so layout made six pseudo-element styles per
+#: element of the report whether it has a list marker, footnote or note or not: ~120,000 styles, ~140 MiB, for
+#: a 100-leg job (of a peak of ~510 MiB). The report has list markers on ``li`` only (no other element is a
+#: list item) and no footnotes or notes, so the markers keep their rule, narrowed to ``li``, and the footnote
+#: and note rules are left out: the same computed styles for every box drawn, the same PDF bytes
+#: (tests/report/test_render_memory.py). A template that makes another element a list item, or uses
+#: ``float: footnote`` or ``position: note()``, needs its rule back here.
+UA_NARROWED = {"::marker {": "li::marker {"}
+UA_LEFT_OUT = ("::footnote-call {", "::footnote-marker {", "::note-call {", "::note-marker {", "::note-callback {")
+
+
+def narrowed_ua_css(ua: str) -> str | None:
+    """WeasyPrint's user-agent style sheet with the rules of :data:`UA_NARROWED` and :data:`UA_LEFT_OUT`
+    changed, or None if the sheet does not have each of them once at the start of a line (another
+    WeasyPrint: then its own sheet is used unchanged)."""
+    lines = ua.split("\n")
+    wanted = (*UA_NARROWED, *UA_LEFT_OUT)
+    if any(sum(line.startswith(rule) for line in lines) != 1 for rule in wanted):
+        return None
+    out = []
+    for line in lines:
+        if line.startswith(UA_LEFT_OUT):
+            continue
+        for rule, narrowed in UA_NARROWED.items():
+            if line.startswith(rule):
+                line = narrowed + line[len(rule):]
+        out.append(line)
+    return "\n".join(out)
+
+
+class _Html:
+    """Build lazily: WeasyPrint's HTML with the user-agent style sheet of :func:`narrowed_ua_css`."""
+
+    _cls = None
+
+    @classmethod
+    def make(cls, **kwargs):
+        if cls._cls is None:
+            load_weasyprint()
+            from weasyprint import CSS, HTML
+            from weasyprint.css.counters import CounterStyle
+            from weasyprint.html import UA, UA_STYLESHEET
+
+            text = narrowed_ua_css(UA)
+            # its @counter-style rules go to a counter-style set of its own: WeasyPrint's are registered already
+            sheet = UA_STYLESHEET if text is None else CSS(string=text, counter_style=CounterStyle())
+
+            class ReportHTML(HTML):
+                """HTML whose user-agent style sheet is the narrowed one."""
+
+                def _ua_stylesheets(self, forms=False):
+                    return [sheet if s is UA_STYLESHEET else s for s in super()._ua_stylesheets(forms)]
+
+            cls._cls = ReportHTML
+        return cls._cls(**kwargs)
+
+
 def render_pdf(results, results_json: str) -> bytes:
     """The calc package as PDF bytes, with the job file and the results JSON attached."""
     load_weasyprint()
-    from weasyprint import HTML, Attachment
+    from weasyprint import Attachment
 
     html = render_html(results)
     job = results.job
@@ -315,7 +373,7 @@ def render_pdf(results, results_json: str) -> bytes:
     # validator (such as veraPDF) can be installed on our machines, so the claim could not be checked
     # (LIBRARY-NOTES: one build listed the attachment twice). Plain PDF with embedded files until then.
     fetcher = _Fetcher.make()
-    doc = HTML(string=html, base_url=templates_dir().as_uri() + "/", url_fetcher=fetcher)
+    doc = _Html.make(string=html, base_url=templates_dir().as_uri() + "/", url_fetcher=fetcher)
     # fontTools stamps the clock into every embedded font subset unless SOURCE_DATE_EPOCH is set
     # (LIBRARY-NOTES): pin it to the calc date for this rendering only.
     saved = os.environ.get("SOURCE_DATE_EPOCH")

@@ -17,7 +17,7 @@ from markupsafe import Markup, escape
 from .. import units
 from ..job.source import dump as dump_yaml
 from . import format as fmt
-from .render import _env, _Fetcher, fonts_dir, load_weasyprint, templates_dir
+from .render import _env, _Fetcher, _Html, fonts_dir, load_weasyprint, templates_dir
 
 __all__ = ["context", "render_html", "render_pdf"]
 
@@ -104,7 +104,7 @@ def render_html(data: dict) -> str:
 def render_pdf(results_json: str, case_files: list[tuple[str, str]]) -> bytes:
     """The verification report as PDF bytes, with its JSON and the case files attached."""
     load_weasyprint()
-    from weasyprint import HTML, Attachment
+    from weasyprint import Attachment
 
     data = json.loads(results_json)
     html = render_html(data)
@@ -115,7 +115,7 @@ def render_pdf(results_json: str, case_files: list[tuple[str, str]]) -> bytes:
     for name, text in case_files:
         attachments.append(Attachment(string=text.encode("utf-8"), name=name, description="Verification case file",
                                       created=stamp, modified=stamp, relationship="Source"))
-    doc = HTML(string=html, base_url=templates_dir().as_uri() + "/", url_fetcher=_Fetcher.make())
+    doc = _Html.make(string=html, base_url=templates_dir().as_uri() + "/", url_fetcher=_Fetcher.make())
     saved = os.environ.get("SOURCE_DATE_EPOCH")
     os.environ["SOURCE_DATE_EPOCH"] = str(EPOCH)
     try:
