@@ -10,6 +10,7 @@ from .. import __version__
 from ..errors import Finding, JobError, PhysicsError
 from ..job.messages import problem
 from ..job.model import Job
+from ..physics import installed
 from ..physics.calc import Calc, Term
 from ..physics.closed import LegResult
 from ..physics.dome import saturation_dome
@@ -26,17 +27,10 @@ def software_versions() -> dict[str, str]:
 
 @lru_cache(maxsize=1)
 def _versions() -> tuple[tuple[str, str], ...]:
-    # reading the installed packages' metadata costs ~40 ms: once per process (a sweep asks per point;
-    # the modules loaded cannot change version while the process runs); imported here, as it pulls in
-    # the email package (~15 ms) that checking a job file does not need
-    from importlib import metadata
-
+    # once per process (a sweep asks per point; the modules loaded cannot change version while it runs)
     out = {"calcdoc": __version__}
     for dist in ("CoolProp", "pint", "PyYAML", "Jinja2", "matplotlib", "weasyprint", "numpy"):
-        try:
-            out[dist] = metadata.version(dist)
-        except metadata.PackageNotFoundError:
-            out[dist] = "not installed"
+        out[dist] = installed.version(dist) or "not installed"
     return tuple(out.items())
 
 

@@ -7,6 +7,7 @@ from functools import lru_cache
 from pathlib import Path
 
 from ..units import cache_dir
+from .installed import version
 
 __all__ = ["TRADE_NAMES", "closest_fluids", "component_name", "coolprop_version", "fluid_names", "is_mixture_string",
            "known_fluid", "molar_mass"]
@@ -73,32 +74,9 @@ def _cache_file() -> Path | None:
     return folder / f"coolprop-{safe}-fluids.json"
 
 
-@lru_cache(maxsize=1)
 def coolprop_version() -> str | None:
-    """The installed CoolProp's version, without importing it; None when it is not installed.
-
-    Read from the name of its ``.dist-info`` folder beside the package (a directory listing), which is
-    how an installer records it; where that is not found, from ``importlib.metadata`` (which parses
-    every installed package's metadata: ~20 ms, most of a ``calcdoc check``)."""
-    import importlib.util
-
-    spec = importlib.util.find_spec("CoolProp")
-    if spec is None or not spec.origin:
-        return None
-    site = Path(spec.origin).parent.parent
-    try:
-        found = [d.name[len("coolprop-"):-len(".dist-info")] for d in site.iterdir()
-                 if d.name.lower().startswith("coolprop-") and d.name.endswith(".dist-info")]
-    except OSError:
-        found = []
-    if len(found) == 1:
-        return found[0]
-    from importlib import metadata
-
-    try:
-        return metadata.version("CoolProp")
-    except metadata.PackageNotFoundError:
-        return None
+    """The installed CoolProp's version, without importing it; None when it is not installed."""
+    return version("CoolProp")
 
 
 def _names_from_library() -> dict[str, str]:
