@@ -14,25 +14,14 @@ from .. import __version__, selftest
 from ..errors import EXIT_BAD_INPUT, EXIT_CHECK_FAILED, EXIT_INTERNAL, EXIT_OK, CalcdocError
 from ..report.output import output_folder
 from . import signing, tools
-from .args import LIGHT, build_parser
+from .args import LIGHT
 from .batch import expand, run_batch
 from .light import light_command
 from .runjob import output_groups, run_one
 from .verify import RerunFailed, verify
 from .watch import watch
 
-__all__ = ["command", "main"]
-
-
-def main(argv: list[str] | None = None) -> int:
-    """Run any command with everything loaded; returns its exit code (:func:`calcdoc.main` loads only
-    what the command needs)."""
-    parser = build_parser()
-    args = parser.parse_args(argv)
-    if args.command is None:
-        parser.print_help()
-        return EXIT_OK
-    return command(args)
+__all__ = ["command"]
 
 
 def command(args) -> int:

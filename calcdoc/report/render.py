@@ -5,10 +5,12 @@ URLs (see :class:`RestrictedFetcher`); job text is autoescaped everywhere.
 """
 from __future__ import annotations
 
+import atexit
 import datetime as _dt
 import mimetypes
 import os
 import re
+import shutil
 from functools import lru_cache
 from importlib import resources
 from pathlib import Path
@@ -254,9 +256,26 @@ def _font_config() -> Any:
     a rebuild in ``calcdoc watch`` (or a batch worker's next job) saves that work, ~30 % of the render;
     the PDF bytes are the same (tests/report/test_weasyprint_import.py)."""
     load_weasyprint()
+    import multiprocessing.util
+
     from weasyprint.text.fonts import FontConfiguration
 
-    return FontConfiguration()
+    config = FontConfiguration()
+    # WeasyPrint copies the report's font files into a temporary folder that the configuration's __del__
+    # removes; kept for the whole process, the configuration would meet its end at interpreter shutdown, where
+    # that removal may fail, or never (a batch worker ends by os._exit): 3.7 MB left in the temporary folder
+    # per process. So the folder is removed at exit, by atexit and by multiprocessing's finalizers (which a
+    # worker process runs before it ends).
+    atexit.register(_remove_font_files, config)
+    multiprocessing.util.Finalize(None, _remove_font_files, args=(config,), exitpriority=10)
+    return config
+
+
+def _remove_font_files(config: Any) -> None:
+    folder = getattr(config, "_folder", None)
+    if folder:
+        shutil.rmtree(folder, ignore_errors=True)
+        config._folder = None
 
 
 def render_html(results) -> str:

@@ -2,6 +2,7 @@
 from __future__ import annotations
 
 import json
+import os
 
 from _limits_helpers import ideal_job, write
 
@@ -52,3 +53,22 @@ def test_two_jobs_with_the_same_calc_number_and_revision_are_not_both_written(tm
     assert f"{b}: calc T-LIM-001 rev A is also {a}" in err      # the later job in file order is refused
     # the report of a stands, not overwritten by b
     assert json.loads((out / "T-LIM-001_revA.json").read_text())["states"][0]["P"]["value"] != 120e3
+
+
+def test_no_font_files_are_left_in_the_temporary_folder(tmp_path):
+    """WeasyPrint copies the report's fonts into a temporary folder per process; a run and a batch (whose
+    workers end by os._exit) remove it before they end."""
+    import subprocess
+    import sys
+
+    temp = tmp_path / "temp"
+    temp.mkdir()
+    env = dict(os.environ, TMPDIR=str(temp))
+    a = write(tmp_path, "a.yaml", ideal_job())
+    b = write(tmp_path, "b.yaml", ideal_job(revision="B"))
+    for jobs in ([a], [a, b]):
+        r = subprocess.run([sys.executable, "-m", "calcdoc", "run", *map(str, jobs), "-o", str(tmp_path / "out"),
+                            "-q", "--jobs", "2"], env=env, capture_output=True, text=True, timeout=300)
+        assert r.returncode == 0, r.stderr
+        assert (tmp_path / "out" / "T-LIM-001_revA.pdf").is_file()
+        assert not list(temp.glob("weasyprint-*")), jobs
