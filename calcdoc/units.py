@@ -283,6 +283,27 @@ def cache_dir(*parts: str) -> Path | None:
     return path
 
 
+def write_cached(path: Path, text: str) -> None:
+    """Put ``text`` in ``path`` (a file in :func:`cache_dir`): written to a private name beside it, then
+    renamed into place (atomic on POSIX), so a reader never sees half a file; a cache that cannot be written
+    is not an error (the data is computed again next time)."""
+    import tempfile
+
+    try:
+        fd, tmp = tempfile.mkstemp(prefix=f".{path.stem}-", suffix=".tmp", dir=path.parent)
+    except OSError:
+        return
+    try:
+        with os.fdopen(fd, "w", encoding="utf-8") as fh:
+            fh.write(text)
+        os.replace(tmp, path)
+    except OSError:
+        try:
+            os.unlink(tmp)
+        except OSError:
+            pass
+
+
 def _pint_cache(pint: Any) -> str | None:
     """pint's cache of its parsed unit definitions (building the registry: ~0.2 s without, ~0.02 s
     with). pint writes its cache files in place, so a fresh cache is built in a private folder and

@@ -12,12 +12,10 @@ from __future__ import annotations
 
 import json
 import math
-import os
 import re
-import tempfile
 from pathlib import Path
 
-from ..units import cache_dir
+from ..units import cache_dir, write_cached
 from .gas import RealGas
 
 __all__ = ["FORMAT", "computed", "saturation_dome"]
@@ -71,17 +69,4 @@ def _read(path: Path) -> list[tuple[float, float, float, float, float]] | None:
 
 
 def _write(path: Path, curve: list[tuple[float, float, float, float, float]]) -> None:
-    text = json.dumps({"points": [list(p) for p in curve]}, separators=(",", ":"))
-    try:
-        fd, tmp = tempfile.mkstemp(prefix=".dome-", suffix=".tmp", dir=path.parent)
-    except OSError:
-        return
-    try:
-        with os.fdopen(fd, "w", encoding="utf-8") as fh:
-            fh.write(text)
-        os.replace(tmp, path)
-    except OSError:
-        try:
-            os.unlink(tmp)
-        except OSError:
-            pass
+    write_cached(path, json.dumps({"points": [list(p) for p in curve]}, separators=(",", ":")))

@@ -27,13 +27,12 @@ import json
 import math
 import multiprocessing
 import os
-import tempfile
 import time
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
-from ..units import cache_dir
+from ..units import cache_dir, write_cached
 
 __all__ = ["Envelope", "FORMAT", "HEOS_BUDGET_S", "PR_BUDGET_S", "PR_MARGIN_K", "phase_envelope", "traced"]
 
@@ -142,22 +141,8 @@ def _read(path: Path) -> Envelope | None:
 
 
 def _write(path: Path, env: Envelope) -> None:
-    """Keep ``env`` in ``path``: written to a private name, then renamed into place (atomic on POSIX)."""
-    text = json.dumps({"source": env.source, "tried": [list(t) for t in env.tried],
-                       "curve": [list(p) for p in env.curve]}, separators=(",", ":"))
-    try:
-        fd, tmp = tempfile.mkstemp(prefix=".envelope-", suffix=".tmp", dir=path.parent)
-    except OSError:
-        return
-    try:
-        with os.fdopen(fd, "w", encoding="utf-8") as fh:
-            fh.write(text)
-        os.replace(tmp, path)
-    except OSError:
-        try:
-            os.unlink(tmp)
-        except OSError:
-            pass
+    write_cached(path, json.dumps({"source": env.source, "tried": [list(t) for t in env.tried],
+                                   "curve": [list(p) for p in env.curve]}, separators=(",", ":")))
 
 
 def _child(conn: Any, backend: str, components: tuple[str, ...], x: tuple[float, ...]) -> None:

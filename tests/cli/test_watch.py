@@ -79,18 +79,23 @@ def test_watch_rebuilds_on_change_and_ends_on_ctrl_c(tmp_path):
         assert result.read_bytes() == second
         assert p.poll() is None
     finally:
-        p.send_signal(signal.SIGINT)
-        try:
-            code = p.wait(timeout=30)
-        except subprocess.TimeoutExpired:
-            p.kill()
-            raise
+        code = _stop(p, signal.SIGINT)
         for t in readers:
             t.join(timeout=10)
         p.stdout.close()
         p.stderr.close()
     assert code == 130
     assert any("stopped watching" in line for line in _drain(qe))
+
+
+def _stop(p, sig) -> int:
+    """Send ``sig`` to the watcher; its exit code (killed, and the test failed, if it does not end)."""
+    p.send_signal(sig)
+    try:
+        return p.wait(timeout=30)
+    except subprocess.TimeoutExpired:
+        p.kill()
+        raise
 
 
 def _ctrl_c_as_from_a_terminal():
@@ -109,12 +114,7 @@ def test_watch_ends_on_sigterm_as_on_ctrl_c(tmp_path):
     try:
         _wait_for(qo, "built in")
     finally:
-        p.send_signal(signal.SIGTERM)
-        try:
-            code = p.wait(timeout=30)
-        except subprocess.TimeoutExpired:
-            p.kill()
-            raise
+        code = _stop(p, signal.SIGTERM)
         reader.join(timeout=10)
         err = p.stderr.read()
         p.stdout.close()

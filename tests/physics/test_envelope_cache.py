@@ -42,7 +42,7 @@ def test_second_envelope_comes_from_the_disk_bit_for_bit(cache, monkeypatch):
     assert _fields(second) == _fields(first)       # exact float equality, point by point
     files = list((cache / "envelope").glob("*.json"))
     assert len(files) == 1 and f"-v{envelope.FORMAT}.json" in files[0].name
-    assert not list((cache / "envelope").glob(".envelope-*"))   # no temporary file left
+    assert not list((cache / "envelope").glob(".*"))   # no temporary file left
 
 
 def test_key_holds_the_composition_and_the_budgets(cache, monkeypatch):
