@@ -14,9 +14,7 @@ from .. import __version__, selftest
 from ..errors import EXIT_BAD_INPUT, EXIT_CHECK_FAILED, EXIT_INTERNAL, EXIT_OK, CalcdocError
 from ..report.output import output_folder
 from . import signing, tools
-from .args import LIGHT
 from .batch import expand, run_batch
-from .light import light_command
 from .runjob import output_groups, run_one
 from .verify import RerunFailed, verify
 from .watch import watch
@@ -25,9 +23,8 @@ __all__ = ["command"]
 
 
 def command(args) -> int:
-    """Run the parsed command ``args.command``; returns its exit code."""
-    if args.command in LIGHT:
-        return light_command(args)
+    """Run the parsed command ``args.command`` (any but the light ones, which :func:`calcdoc.main` sends to
+    :mod:`calcdoc.cli.light`); returns its exit code."""
     if args.command == "verify":
         return _verify(args)
     if args.command == "sign":

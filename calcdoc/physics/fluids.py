@@ -2,11 +2,10 @@
 from __future__ import annotations
 
 import json
-import os
 from functools import lru_cache
 from pathlib import Path
 
-from ..units import cache_dir
+from ..units import cache_dir, write_cached
 from .installed import version
 
 __all__ = ["TRADE_NAMES", "closest_fluids", "component_name", "coolprop_version", "fluid_names", "is_mixture_string",
@@ -55,13 +54,7 @@ def fluid_names() -> dict[str, str]:
             pass
     out = _names_from_library()
     if cache is not None:
-        try:
-            cache.parent.mkdir(parents=True, exist_ok=True)
-            tmp = cache.with_name(f".{cache.name}.{os.getpid()}.part")
-            tmp.write_text(json.dumps(out, sort_keys=True), encoding="utf-8")
-            os.replace(tmp, cache)
-        except OSError:
-            pass
+        write_cached(cache, json.dumps(out, sort_keys=True))
     return out
 
 
